@@ -1,0 +1,37 @@
+// Who may do what. Shared by server guards and the navigation, so a link is shown exactly when
+// the page behind it would let the person in.
+export const ROLE_NAMES = ['owner', 'manager', 'writer', 'technician'] as const;
+export type RoleName = (typeof ROLE_NAMES)[number];
+
+export const ROLE_LABELS: Record<RoleName, string> = {
+	owner: 'Owner',
+	manager: 'Manager',
+	writer: 'Service writer',
+	technician: 'Technician'
+};
+
+export const STAFF: readonly RoleName[] = ROLE_NAMES;
+export const MANAGERS: readonly RoleName[] = ['owner', 'manager'];
+
+/** Roles a person may invite or remove: owners anyone, managers the floor staff. */
+export function manageableRoles(role: RoleName): RoleName[] {
+	if (role === 'owner') return [...ROLE_NAMES];
+	if (role === 'manager') return ['writer', 'technician'];
+	return [];
+}
+
+export interface NavItem {
+	href: string;
+	label: string;
+	roles: readonly RoleName[];
+}
+
+export const NAV: NavItem[] = [
+	{ href: '/home', label: 'Today', roles: STAFF },
+	{ href: '/team', label: 'Team', roles: MANAGERS },
+	{ href: '/account', label: 'My account', roles: STAFF }
+];
+
+export function navFor(role: RoleName): NavItem[] {
+	return NAV.filter((item) => item.roles.includes(role));
+}

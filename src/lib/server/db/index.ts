@@ -1,0 +1,43 @@
+import pg from 'pg';
+import { Sequelize } from 'sequelize';
+import { initModels } from './models';
+
+// NUMERIC arrives as a string and stays one until it is wrapped in Decimal; BIGINT counts
+// (COUNT(*)) are safe as numbers at the sizes a shop reaches.
+pg.types.setTypeParser(pg.types.builtins.INT8, (value: string) => Number(value));
+
+let instance: Sequelize | undefined;
+
+export function databaseUrl(): string {
+	const url = process.env.DATABASE_URL;
+	if (!url) throw new Error('DATABASE_URL is not set. `npm start` sets it; see README "Configuration".');
+	return url;
+}
+
+/** The one Sequelize instance of this process, created on first use. */
+export function db(): Sequelize {
+	if (!instance) {
+		instance = new Sequelize(databaseUrl(), {
+			dialect: 'postgres',
+			dialectModule: pg,
+			logging: process.env.SQL_LOG === '1' ? console.log : false,
+			pool: { max: Number(process.env.DB_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 30_000 },
+			// A restarted database drops every pooled connection; retry the few errors that mean
+			// "connection lost" so requests after recovery succeed.
+			retry: {
+				max: 3,
+				match: [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/]
+			},
+			define: { underscored: true, timestamps: true }
+		});
+		initModels(instance);
+	}
+	return instance;
+}
+
+export async function closeDb(): Promise<void> {
+	if (instance) {
+		await instance.close();
+		instance = undefined;
+	}
+}

@@ -1,0 +1,27 @@
+import type { Sequelize } from 'sequelize';
+import { SequelizeStorage, Umzug, type MigrationFn } from 'umzug';
+import { db } from './index';
+import * as foundation from './migrations/20261202-0001-foundation';
+import * as customers from './migrations/20261202-0002-customers';
+
+export type Migration = MigrationFn<Sequelize>;
+
+// Listed statically so the same list runs under tsx, in tests and from the built server.
+const migrations: { name: string; module: { up: Migration; down: Migration } }[] = [
+	{ name: '20261202-0001-foundation', module: foundation },
+	{ name: '20261202-0002-customers', module: customers }
+];
+
+export function migrator(sequelize: Sequelize = db()) {
+	return new Umzug({
+		migrations: migrations.map(({ name, module }) => ({ name, up: module.up, down: module.down })),
+		context: sequelize,
+		storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations' }),
+		logger: undefined
+	});
+}
+
+export async function migrate(): Promise<string[]> {
+	const done = await migrator().up();
+	return done.map((m) => m.name);
+}
