@@ -249,9 +249,9 @@ export function dbTask(command, env) {
 }
 
 /** The database to use: DATABASE_URL when set, else the project-local cluster. */
-export async function database({ name, dbName, durable }) {
-	if (process.env.DATABASE_URL) {
-		return { url: process.env.DATABASE_URL, superUrl: undefined, cluster: null };
+export async function database({ name, dbName, durable, urlVariable = 'DATABASE_URL' }) {
+	if (process.env[urlVariable]) {
+		return { url: process.env[urlVariable], superUrl: undefined, cluster: null };
 	}
 	const cluster = await startCluster({ name, durable });
 	return { url: cluster.appUrl(dbName), superUrl: cluster.superUrl, cluster };

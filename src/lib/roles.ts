@@ -35,3 +35,11 @@ export const NAV: NavItem[] = [
 export function navFor(role: RoleName): NavItem[] {
 	return NAV.filter((item) => item.roles.includes(role));
 }
+
+/** "an owner", "a service writer" — for messages. */
+export function roleWithArticle(role: RoleName): string {
+	const label = ROLE_LABELS[role].toLowerCase();
+	return (/^[aeiou]/.test(label) ? 'an ' : 'a ') + label;
+}
+
+export const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);

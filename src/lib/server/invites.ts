@@ -1,7 +1,7 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { Op } from 'sequelize';
 import { z } from 'zod';
-import { ROLE_NAMES, manageableRoles, type RoleName } from '../roles';
+import { ROLE_NAMES, capitalise, manageableRoles, roleWithArticle, type RoleName } from '../roles';
 import * as audit from './audit';
 import { lucia } from './auth/lucia';
 import { hashPassword } from './auth/password';
@@ -29,7 +29,7 @@ interface Actor {
 /** Creates a single-use invite and returns the token for the link (only its hash is kept). */
 export async function create(actor: Actor, input: z.infer<typeof inviteSchema>) {
 	if (!manageableRoles(actor.role).includes(input.role)) {
-		throw new UserError(`A ${actor.role} cannot invite a ${input.role}.`, 'role');
+		throw new UserError(`${capitalise(roleWithArticle(actor.role))} cannot invite ${roleWithArticle(input.role)}.`, 'role');
 	}
 	if (await emailTaken(input.email)) throw new UserError('Someone with this e-mail already has an account.', 'email');
 	const token = randomBytes(32).toString('base64url');
@@ -55,7 +55,7 @@ export function listOpen(shopId: string) {
 export async function revoke(actor: Actor, inviteId: string) {
 	const invite = await Invite.findOne({ where: { id: inviteId, shopId: actor.shopId, usedAt: null, revokedAt: null } });
 	if (!invite) throw new UserError('No such open invite in your shop.');
-	if (!manageableRoles(actor.role).includes(invite.role)) throw new UserError(`A ${actor.role} cannot withdraw that invite.`);
+	if (!manageableRoles(actor.role).includes(invite.role)) throw new UserError(`${capitalise(roleWithArticle(actor.role))} cannot withdraw that invite.`);
 	invite.revokedAt = new Date();
 	await invite.save();
 	await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'invite.revoked', entity: 'invite', entityId: invite.id });

@@ -1,6 +1,6 @@
 import { Op } from 'sequelize';
 import { z } from 'zod';
-import { manageableRoles, type RoleName } from '../roles';
+import { capitalise, manageableRoles, roleWithArticle, type RoleName } from '../roles';
 import * as audit from './audit';
 import { lucia } from './auth/lucia';
 import { MIN_PASSWORD_LENGTH, burnVerification, hashPassword, verifyPassword } from './auth/password';
@@ -109,7 +109,7 @@ export async function remove(actor: { id: string; shopId: string; role: RoleName
 	if (!target) throw new UserError('No such teammate in your shop.');
 	if (target.id === actor.id) throw new UserError('You cannot remove yourself.');
 	if (!manageableRoles(actor.role).includes(target.role)) {
-		throw new UserError(`A ${actor.role} cannot remove a ${target.role}.`);
+		throw new UserError(`${capitalise(roleWithArticle(actor.role))} cannot remove ${roleWithArticle(target.role)}.`);
 	}
 	if (target.role === 'owner') {
 		const owners = await User.count({ where: { shopId: actor.shopId, role: 'owner', active: true } });

@@ -1,0 +1,23 @@
+import { Dec, formatMoney, toFixedString } from '../src/lib/pricing/money';
+import { sayPercent, sayYears, sayNumber, percentString, factorString } from '../src/lib/pricing/format';
+import { capitalRecoveryFactor, breakEvenRepair, cumulativeCostChart, repairVerdict, remainingLifeAfterRepair } from '../src/lib/pricing/economics';
+import { unitValue } from '../src/lib/pricing/value';
+import { settingsToJson, defaultPricingSettings } from '../src/lib/pricing/settings';
+function bench(name: string, f: () => unknown, n = 100000) { for (let k = 0; k < 5000; k++) f(); const t = performance.now(); for (let k = 0; k < n; k++) f(); console.log(name.padEnd(28), ((performance.now() - t) / n * 1000).toFixed(3), 'us'); }
+const m = new Dec('1234.5'), f = new Dec('0.4727'), y = new Dec('6'), e = new Dec('109.5612345678901234567');
+bench('formatMoney', () => formatMoney(m, 'USD'));
+bench('toFixedString money', () => toFixedString(m, 2));
+bench('toFixedString long', () => toFixedString(e, 2));
+bench('sayPercent', () => sayPercent(f));
+bench('sayYears', () => sayYears(y));
+bench('sayNumber', () => sayNumber(new Dec('1500')));
+bench('percentString', () => percentString(new Dec('106.5'), new Dec('248.5')));
+bench('factorString', () => factorString(e));
+bench('crf memo', () => capitalRecoveryFactor(new Dec('0.08'), y));
+bench('breakEven', () => breakEvenRepair({ replacementAnnualCost: e, asIsValue: new Dec(40), rate: new Dec('0.08'), life: y }));
+bench('verdict', () => repairVerdict(m, e, new Dec('0.1')));
+bench('chart', () => cumulativeCostChart(new Dec('109.56'), new Dec('147.08'), y, new Dec(10)));
+bench('life', () => remainingLifeAfterRepair({ lifeYears: new Dec(10), ageYears: new Dec(4), lifeHours: new Dec(1500), engineHours: new Dec(420), annualHours: new Dec(100), minimumLife: new Dec(1) }));
+bench('unitValue', () => unitValue({ replacementCostNew: new Dec(899), salvageFloorPercent: new Dec(10), lifeYears: new Dec(10), lifeHours: new Dec(1500), ageYears: new Dec(4), engineHours: new Dec(420), conditionFactor: new Dec('0.9') }));
+bench('settingsToJson', () => settingsToJson(defaultPricingSettings), 20000);
+bench('new Dec x1', () => new Dec(40));

@@ -1,0 +1,93 @@
+// `npm start` end to end on its own data folder: a cluster on 127.0.0.1 only, durable, the demo
+// owner can sign in, Ctrl+C stops everything, and a second start keeps every row.
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import pg from 'pg';
+import { afterAll, describe, expect, it } from 'vitest';
+import { Client } from '../helpers/client';
+import { freePort, root } from '../helpers/app';
+
+const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'mendwise-start-'));
+fs.chmodSync(dataDir, 0o755);
+let current: ChildProcess | undefined;
+
+function start(port: number): Promise<{ output: string }> {
+	const env = { ...process.env, MENDWISE_DATA_DIR: dataDir, PORT: String(port), MENDWISE_SKIP_BUILD: '1' };
+	delete env.DATABASE_URL;
+	delete env.ORIGIN;
+	const child = spawn(process.execPath, [path.join(root, 'scripts', 'start.mjs')], { env, cwd: root });
+	current = child;
+	let output = '';
+	return new Promise((resolve, reject) => {
+		const timer = setTimeout(() => reject(new Error(`npm start did not come up:\n${output}`)), 90_000);
+		const onData = (chunk: Buffer) => {
+			output += chunk.toString();
+			if (output.includes('Mendwise is running at')) {
+				clearTimeout(timer);
+				resolve({ output });
+			}
+		};
+		child.stdout.on('data', onData);
+		child.stderr.on('data', onData);
+		child.once('exit', (code) => {
+			clearTimeout(timer);
+			reject(new Error(`npm start exited early (${code}):\n${output}`));
+		});
+	});
+}
+
+function interrupt(): Promise<number | null> {
+	const child = current!;
+	return new Promise((resolve) => {
+		child.removeAllListeners('exit');
+		child.once('exit', (code) => resolve(code));
+		child.kill('SIGINT');
+	});
+}
+
+afterAll(async () => {
+	if (current && current.exitCode === null) await interrupt();
+	fs.rmSync(dataDir, { recursive: true, force: true });
+});
+
+describe('npm start', () => {
+	it('serves sign-in, keeps rows across a restart, and listens on loopback only', async () => {
+		const port = await freePort();
+		const first = await start(port);
+		const base = `http://127.0.0.1:${port}`;
+		expect(first.output).toContain(`Mendwise is running at ${base}`);
+		const signIns = JSON.parse(fs.readFileSync(path.join(dataDir, 'demo-sign-ins.json'), 'utf8'));
+		const owner = signIns.find((s: { role: string }) => s.role === 'owner');
+		expect(first.output).toContain(owner.email);
+		expect(first.output).toContain(owner.password);
+
+		expect((await new Client(base).get('/signin')).status).toBe(200);
+		const client = new Client(base);
+		await client.signIn(owner.email, owner.password);
+		const invited = 'kept.across.restart@shop.example';
+		expect((await client.form('/team?/invite', { email: invited, role: 'writer' })).status).toBe(200);
+
+		const meta = JSON.parse(fs.readFileSync(path.join(dataDir, 'pg.json'), 'utf8'));
+		const admin = new pg.Client({ host: '127.0.0.1', port: meta.port, user: 'postgres', password: meta.password, database: 'mendwise' });
+		await admin.connect();
+		const settings = await admin.query(
+			"SELECT name, setting FROM pg_settings WHERE name IN ('listen_addresses', 'fsync', 'synchronous_commit')"
+		);
+		await admin.end();
+		const byName = Object.fromEntries(settings.rows.map((r) => [r.name, r.setting]));
+		expect(byName).toEqual({ listen_addresses: '127.0.0.1', fsync: 'on', synchronous_commit: 'on' });
+
+		expect(await interrupt()).toBe(0);
+		await expect(fetch(`${base}/api/health`)).rejects.toThrow();
+
+		const second = await start(port);
+		expect(second.output).toContain('PostgreSQL listening');
+		expect(second.output).not.toContain('creating PostgreSQL cluster');
+		const again = new Client(base);
+		await again.signIn(owner.email, owner.password);
+		expect((await again.get('/team')).text).toContain(invited);
+		expect(await interrupt()).toBe(0);
+	});
+});
