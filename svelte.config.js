@@ -3,7 +3,9 @@ import adapter from '@sveltejs/adapter-node';
 /** @type {import('@sveltejs/kit').Config} */
 const config = {
 	kit: {
-		adapter: adapter({ out: 'build', precompress: true }),
+		// Separate output folders let several test runs build side by side.
+		adapter: adapter({ out: process.env.MENDWISE_BUILD_DIR ?? 'build', precompress: true }),
+		outDir: process.env.MENDWISE_KIT_DIR ?? '.svelte-kit',
 		// Strict by default: only same-origin script, style, images and fonts. SvelteKit adds
 		// nonces/hashes for its own inline bootstrap script.
 		csp: {

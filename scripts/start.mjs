@@ -3,7 +3,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-	database, dbTask, ensureDependencies, log, root, run, startChild, waitForHttp
+	buildDir, database, dbTask, ensureDependencies, log, root, run, startChild, waitForHttp
 } from './lib/bootstrap.mjs';
 
 const stops = [];
@@ -30,7 +30,7 @@ try {
 	if (cluster) stops.push(() => cluster.stop());
 	dbTask('prepare', { DATABASE_URL: url, ...(superUrl ? { SUPER_DATABASE_URL: superUrl } : {}) });
 
-	if (process.env.MENDWISE_SKIP_BUILD === '1' && fs.existsSync(path.join(root, 'build', 'index.js'))) {
+	if (process.env.MENDWISE_SKIP_BUILD === '1' && fs.existsSync(path.join(buildDir, 'index.js'))) {
 		log('using the existing build');
 	} else {
 		log('building');
@@ -40,7 +40,7 @@ try {
 	const port = Number(process.env.PORT ?? 3000);
 	const host = process.env.HOST ?? '127.0.0.1';
 	const origin = process.env.ORIGIN ?? `http://${host}:${port}`;
-	const app = startChild('app', process.execPath, [path.join(root, 'build', 'index.js')], {
+	const app = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
 		env: { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: host, ORIGIN: origin, BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '26M' }
 	});
 	stops.push(() => app.stop());

@@ -4,7 +4,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-	dataDir, database, dbTask, ensureDebianPackages, ensureDependencies, freePort, log, root, run,
+	dataDir, buildDir, database, dbTask, ensureDebianPackages, ensureDependencies, freePort, log, root, run,
 	startChild, waitForHttp
 } from './lib/bootstrap.mjs';
 
@@ -34,7 +34,7 @@ try {
 	const port = await freePort(Number(process.env.TEST_PORT ?? 4310));
 	const origin = `http://127.0.0.1:${port}`;
 	const appEnv = { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: origin };
-	const app = startChild('app', process.execPath, [path.join(root, 'build', 'index.js')], {
+	const app = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
 		env: appEnv, stdio: ['ignore', 'ignore', 'inherit']
 	});
 	stops.push(() => app.stop());

@@ -242,6 +242,7 @@ export async function waitForHttp(url, timeoutMs = 30000) {
 }
 
 export const tsx = path.join(root, 'node_modules', '.bin', 'tsx');
+export const buildDir = path.resolve(root, process.env.MENDWISE_BUILD_DIR ?? 'build');
 
 /** Runs a database chore (scripts/db-tasks.ts) against the given URLs. */
 export function dbTask(command, env) {

@@ -12,6 +12,10 @@ export const ROLE_LABELS: Record<RoleName, string> = {
 
 export const STAFF: readonly RoleName[] = ROLE_NAMES;
 export const MANAGERS: readonly RoleName[] = ['owner', 'manager'];
+/** People at the counter: they check units in and own the customer relationship. */
+export const FRONT_DESK: readonly RoleName[] = ['owner', 'manager', 'writer'];
+/** People at the bench: they record readings and price repairs. */
+export const BENCH: readonly RoleName[] = ['owner', 'manager', 'technician'];
 
 /** Roles a person may invite or remove: owners anyone, managers the floor staff. */
 export function manageableRoles(role: RoleName): RoleName[] {
@@ -28,6 +32,11 @@ export interface NavItem {
 
 export const NAV: NavItem[] = [
 	{ href: '/home', label: 'Today', roles: STAFF },
+	{ href: '/jobs', label: 'Jobs', roles: STAFF },
+	{ href: '/customers', label: 'Customers', roles: STAFF },
+	{ href: '/catalog', label: 'Catalog', roles: STAFF },
+	{ href: '/specs', label: 'Spec sheets', roles: STAFF },
+	{ href: '/settings', label: 'Settings', roles: MANAGERS },
 	{ href: '/team', label: 'Team', roles: MANAGERS },
 	{ href: '/account', label: 'My account', roles: STAFF }
 ];

@@ -39,7 +39,7 @@ export interface AppInstance {
 export async function startApp(env: Record<string, string> = {}): Promise<AppInstance> {
 	const port = await freePort();
 	const url = `http://127.0.0.1:${port}`;
-	const child = spawn(process.execPath, [path.join(root, 'build', 'index.js')], {
+	const child = spawn(process.execPath, [path.resolve(root, process.env.MENDWISE_BUILD_DIR ?? 'build', 'index.js')], {
 		env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', ORIGIN: url, ...env },
 		stdio: ['ignore', 'ignore', 'inherit']
 	});

@@ -14,7 +14,7 @@ fs.chmodSync(dataDir, 0o755);
 let current: ChildProcess | undefined;
 
 function start(port: number): Promise<{ output: string }> {
-	const env = { ...process.env, MENDWISE_DATA_DIR: dataDir, PORT: String(port), MENDWISE_SKIP_BUILD: '1' };
+	const env: NodeJS.ProcessEnv = { ...process.env, MENDWISE_DATA_DIR: dataDir, PORT: String(port), MENDWISE_SKIP_BUILD: "1" };
 	delete env.DATABASE_URL;
 	delete env.ORIGIN;
 	const child = spawn(process.execPath, [path.join(root, 'scripts', 'start.mjs')], { env, cwd: root });

@@ -3,13 +3,15 @@ import { SequelizeStorage, Umzug, type MigrationFn } from 'umzug';
 import { db } from './index';
 import * as foundation from './migrations/20261202-0001-foundation';
 import * as customers from './migrations/20261202-0002-customers';
+import * as shopData from './migrations/20261202-0003-shop-data';
 
 export type Migration = MigrationFn<Sequelize>;
 
 // Listed statically so the same list runs under tsx, in tests and from the built server.
 const migrations: { name: string; module: { up: Migration; down: Migration } }[] = [
 	{ name: '20261202-0001-foundation', module: foundation },
-	{ name: '20261202-0002-customers', module: customers }
+	{ name: '20261202-0002-customers', module: customers },
+	{ name: '20261202-0003-shop-data', module: shopData }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {

@@ -19,6 +19,7 @@ export class Shop extends Model<InferAttributes<Shop>, InferCreationAttributes<S
 	declare address: CreationOptional<string>;
 	declare currency: CreationOptional<string>;
 	declare settings: CreationOptional<Record<string, unknown>>;
+	declare nextJobNumber: CreationOptional<number>;
 	declare createdAt: CreationOptional<Date>;
 	declare updatedAt: CreationOptional<Date>;
 }
@@ -83,6 +84,156 @@ export class Customer extends Model<InferAttributes<Customer>, InferCreationAttr
 	declare email: CreationOptional<string>;
 	declare address: CreationOptional<string>;
 	declare notes: CreationOptional<string>;
+	declare searchText: CreationOptional<string>;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export const UNIT_KINDS = ['portable', 'inverter', 'standby', 'pressure_washer', 'other'] as const;
+export type UnitKind = (typeof UNIT_KINDS)[number];
+export const VOLTAGES = ['120', '120/240'] as const;
+export const FUELS = ['gasoline', 'propane', 'natural_gas', 'diesel', 'dual_fuel', 'tri_fuel'] as const;
+export const CONDITIONS = ['excellent', 'good', 'fair', 'poor'] as const;
+export const JOB_STATUSES = ['checked_in', 'diagnosing', 'quoted', 'approved', 'declined', 'in_repair', 'ready', 'picked_up'] as const;
+export type JobStatus = (typeof JOB_STATUSES)[number];
+export const READING_RESULTS = ['pass', 'low', 'high', 'open', 'short', 'noted'] as const;
+export type ReadingResult = (typeof READING_RESULTS)[number];
+
+/** NUMERIC columns travel as strings; wrap them in Decimal before any arithmetic. */
+type Numeric = string;
+
+export class Unit extends Model<InferAttributes<Unit>, InferCreationAttributes<Unit>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare customerId: ForeignKey<Customer['id']>;
+	declare kind: UnitKind;
+	declare maker: CreationOptional<string>;
+	declare model: CreationOptional<string>;
+	declare serial: CreationOptional<string>;
+	declare runningWatts: CreationOptional<number | null>;
+	declare startingWatts: CreationOptional<number | null>;
+	declare voltage: CreationOptional<(typeof VOLTAGES)[number]>;
+	declare fuel: CreationOptional<(typeof FUELS)[number]>;
+	declare engineHours: CreationOptional<Numeric | null>;
+	declare yearBought: CreationOptional<number | null>;
+	declare pricePaid: CreationOptional<Numeric | null>;
+	declare condition: CreationOptional<(typeof CONDITIONS)[number]>;
+	declare notes: CreationOptional<string>;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export class SpecSheet extends Model<InferAttributes<SpecSheet>, InferCreationAttributes<SpecSheet>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare name: string;
+	declare appliesTo: CreationOptional<string>;
+	declare notes: CreationOptional<string>;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export class SpecItem extends Model<InferAttributes<SpecItem>, InferCreationAttributes<SpecItem>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare sheetId: ForeignKey<SpecSheet['id']>;
+	declare position: CreationOptional<number>;
+	declare label: string;
+	declare unit: string;
+	declare minValue: CreationOptional<Numeric | null>;
+	declare maxValue: CreationOptional<Numeric | null>;
+	declare openAbove: CreationOptional<Numeric | null>;
+	declare shortBelow: CreationOptional<Numeric | null>;
+	declare running: CreationOptional<boolean>;
+	declare source: CreationOptional<string>;
+}
+
+export class Job extends Model<InferAttributes<Job>, InferCreationAttributes<Job>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare number: number;
+	declare unitId: ForeignKey<Unit['id']>;
+	declare customerId: ForeignKey<Customer['id']>;
+	declare complaint: string;
+	declare status: CreationOptional<JobStatus>;
+	declare technicianId: ForeignKey<User['id']> | null;
+	declare diagnosticFee: CreationOptional<Numeric>;
+	declare promisedOn: CreationOptional<string | null>;
+	declare specSheetId: ForeignKey<SpecSheet['id']> | null;
+	declare failedComponent: CreationOptional<string>;
+	declare findings: CreationOptional<string>;
+	declare searchText: CreationOptional<string>;
+	declare lockVersion: CreationOptional<number>;
+	declare createdBy: ForeignKey<User['id']> | null;
+	declare statusChangedAt: CreationOptional<Date>;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export class Reading extends Model<InferAttributes<Reading>, InferCreationAttributes<Reading>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare jobId: ForeignKey<Job['id']>;
+	declare specItemId: ForeignKey<SpecItem['id']> | null;
+	declare label: string;
+	declare unit: string;
+	declare value: Numeric | null;
+	declare overRange: CreationOptional<boolean>;
+	declare minValue: Numeric | null;
+	declare maxValue: Numeric | null;
+	declare result: ReadingResult;
+	declare note: CreationOptional<string>;
+	declare takenBy: ForeignKey<User['id']> | null;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class Photo extends Model<InferAttributes<Photo>, InferCreationAttributes<Photo>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare jobId: ForeignKey<Job['id']>;
+	declare caption: CreationOptional<string>;
+	declare showCustomer: CreationOptional<boolean>;
+	declare mime: string;
+	declare width: number;
+	declare height: number;
+	declare sizeBytes: number;
+	declare data: Buffer;
+	declare thumb: Buffer;
+	declare uploadedBy: ForeignKey<User['id']> | null;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class Part extends Model<InferAttributes<Part>, InferCreationAttributes<Part>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare number: string;
+	declare description: string;
+	declare cost: Numeric;
+	declare supplier: CreationOptional<string>;
+	declare stock: CreationOptional<number>;
+	declare specialOrder: CreationOptional<boolean>;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export class LabourOperation extends Model<InferAttributes<LabourOperation>, InferCreationAttributes<LabourOperation>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare name: string;
+	declare hours: Numeric;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export class ReplacementUnit extends Model<InferAttributes<ReplacementUnit>, InferCreationAttributes<ReplacementUnit>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare kind: UnitKind;
+	declare name: string;
+	declare ratedWatts: number;
+	declare priceNew: Numeric;
+	declare lifeYears: Numeric;
+	declare lifeHours: Numeric;
 	declare createdAt: CreationOptional<Date>;
 	declare updatedAt: CreationOptional<Date>;
 }
@@ -106,6 +257,7 @@ export function initModels(sequelize: Sequelize): void {
 			address: { type: DataTypes.STRING(300), allowNull: false, defaultValue: '' },
 			currency: { type: DataTypes.CHAR(3), allowNull: false, defaultValue: 'USD' },
 			settings: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
+			nextJobNumber: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1001 },
 			createdAt,
 			updatedAt: createdAt
 		},
@@ -182,13 +334,163 @@ export function initModels(sequelize: Sequelize): void {
 			email: { type: DataTypes.STRING(254), allowNull: false, defaultValue: '' },
 			address: { type: DataTypes.STRING(300), allowNull: false, defaultValue: '' },
 			notes: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
+			searchText: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
 			createdAt,
 			updatedAt: createdAt
 		},
 		{ sequelize, tableName: 'customers' }
 	);
+	const text = (length?: number) => ({ type: length ? DataTypes.STRING(length) : DataTypes.TEXT, allowNull: false, defaultValue: '' });
+	const numeric = (p: number, s: number, allowNull = true) => ({ type: DataTypes.DECIMAL(p, s), allowNull });
+	const ref = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
+	Unit.init(
+		{
+			id,
+			shopId,
+			customerId: ref(),
+			kind: { type: DataTypes.STRING(20), allowNull: false },
+			maker: text(80),
+			model: text(80),
+			serial: text(80),
+			runningWatts: { type: DataTypes.INTEGER, allowNull: true },
+			startingWatts: { type: DataTypes.INTEGER, allowNull: true },
+			voltage: { type: DataTypes.STRING(10), allowNull: false, defaultValue: '120/240' },
+			fuel: { type: DataTypes.STRING(20), allowNull: false, defaultValue: 'gasoline' },
+			engineHours: numeric(10, 1),
+			yearBought: { type: DataTypes.INTEGER, allowNull: true },
+			pricePaid: numeric(12, 2),
+			condition: { type: DataTypes.STRING(12), allowNull: false, defaultValue: 'good' },
+			notes: text(),
+			createdAt,
+			updatedAt: createdAt
+		},
+		{ sequelize, tableName: 'units' }
+	);
+	SpecSheet.init(
+		{ id, shopId, name: { type: DataTypes.STRING(120), allowNull: false }, appliesTo: text(200), notes: text(), createdAt, updatedAt: createdAt },
+		{ sequelize, tableName: 'spec_sheets' }
+	);
+	SpecItem.init(
+		{
+			id,
+			shopId,
+			sheetId: ref(),
+			position: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			label: { type: DataTypes.STRING(120), allowNull: false },
+			unit: { type: DataTypes.STRING(10), allowNull: false },
+			minValue: numeric(14, 4),
+			maxValue: numeric(14, 4),
+			openAbove: numeric(14, 4),
+			shortBelow: numeric(14, 4),
+			running: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+			source: text(200)
+		},
+		{ sequelize, tableName: 'spec_items', timestamps: false }
+	);
+	Job.init(
+		{
+			id,
+			shopId,
+			number: { type: DataTypes.INTEGER, allowNull: false },
+			unitId: ref(),
+			customerId: ref(),
+			complaint: { type: DataTypes.TEXT, allowNull: false },
+			status: { type: DataTypes.STRING(20), allowNull: false, defaultValue: 'checked_in' },
+			technicianId: ref(true),
+			diagnosticFee: { type: DataTypes.DECIMAL(12, 2), allowNull: false, defaultValue: '0' },
+			promisedOn: { type: DataTypes.DATEONLY, allowNull: true },
+			specSheetId: ref(true),
+			failedComponent: text(120),
+			findings: text(),
+			searchText: text(),
+			lockVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			createdBy: ref(true),
+			statusChangedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
+			createdAt,
+			updatedAt: createdAt
+		},
+		{ sequelize, tableName: 'jobs' }
+	);
+	Reading.init(
+		{
+			id,
+			shopId,
+			jobId: ref(),
+			specItemId: ref(true),
+			label: { type: DataTypes.STRING(120), allowNull: false },
+			unit: { type: DataTypes.STRING(10), allowNull: false },
+			value: numeric(14, 4),
+			overRange: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+			minValue: numeric(14, 4),
+			maxValue: numeric(14, 4),
+			result: { type: DataTypes.STRING(10), allowNull: false },
+			note: text(300),
+			takenBy: ref(true),
+			createdAt
+		},
+		{ sequelize, tableName: 'readings', updatedAt: false }
+	);
+	Photo.init(
+		{
+			id,
+			shopId,
+			jobId: ref(),
+			caption: text(200),
+			showCustomer: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+			mime: { type: DataTypes.STRING(30), allowNull: false },
+			width: { type: DataTypes.INTEGER, allowNull: false },
+			height: { type: DataTypes.INTEGER, allowNull: false },
+			sizeBytes: { type: DataTypes.INTEGER, allowNull: false },
+			data: { type: DataTypes.BLOB, allowNull: false },
+			thumb: { type: DataTypes.BLOB, allowNull: false },
+			uploadedBy: ref(true),
+			createdAt
+		},
+		{ sequelize, tableName: 'photos', updatedAt: false }
+	);
+	Part.init(
+		{
+			id,
+			shopId,
+			number: { type: DataTypes.STRING(60), allowNull: false },
+			description: { type: DataTypes.STRING(200), allowNull: false },
+			cost: numeric(12, 2, false),
+			supplier: text(120),
+			stock: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			specialOrder: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+			createdAt,
+			updatedAt: createdAt
+		},
+		{ sequelize, tableName: 'parts' }
+	);
+	LabourOperation.init(
+		{ id, shopId, name: { type: DataTypes.STRING(120), allowNull: false }, hours: numeric(6, 2, false), createdAt, updatedAt: createdAt },
+		{ sequelize, tableName: 'labour_operations' }
+	);
+	ReplacementUnit.init(
+		{
+			id,
+			shopId,
+			kind: { type: DataTypes.STRING(20), allowNull: false },
+			name: { type: DataTypes.STRING(120), allowNull: false },
+			ratedWatts: { type: DataTypes.INTEGER, allowNull: false },
+			priceNew: numeric(12, 2, false),
+			lifeYears: numeric(5, 1, false),
+			lifeHours: numeric(8, 0, false),
+			createdAt,
+			updatedAt: createdAt
+		},
+		{ sequelize, tableName: 'replacement_units' }
+	);
 
 	Shop.hasMany(User, { foreignKey: 'shopId' });
 	User.belongsTo(Shop, { foreignKey: 'shopId' });
 	Session.belongsTo(User, { foreignKey: 'userId' });
+	Customer.hasMany(Unit, { foreignKey: 'customerId' });
+	Unit.belongsTo(Customer, { foreignKey: 'customerId' });
+	Unit.hasMany(Job, { foreignKey: 'unitId' });
+	Job.belongsTo(Unit, { foreignKey: 'unitId' });
+	Job.belongsTo(Customer, { foreignKey: 'customerId' });
+	Job.belongsTo(User, { foreignKey: 'technicianId', as: 'technician' });
+	SpecSheet.hasMany(SpecItem, { foreignKey: 'sheetId', as: 'items' });
 }
