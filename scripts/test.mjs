@@ -33,7 +33,7 @@ try {
 
 	const port = await freePort(Number(process.env.TEST_PORT ?? 4310));
 	const origin = `http://127.0.0.1:${port}`;
-	const appEnv = { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: origin };
+	const appEnv = { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: origin, BODY_SIZE_LIMIT: '26M' };
 	const app = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
 		env: appEnv, stdio: ['ignore', 'ignore', 'inherit']
 	});

@@ -7,7 +7,8 @@ import { lucia } from './auth/lucia';
 import { hashPassword } from './auth/password';
 import { db } from './db';
 import { Invite, Shop, User } from './db/models';
-import { UserError, emailField, emailTaken, nameField, newPasswordField } from './users';
+import { UserError } from './errors';
+import { emailField, emailTaken, nameField, newPasswordField } from './users';
 
 export const INVITE_DAYS = 7;
 

@@ -2,10 +2,12 @@ import { Op } from 'sequelize';
 import { z } from 'zod';
 import { capitalise, manageableRoles, roleWithArticle, type RoleName } from '../roles';
 import * as audit from './audit';
+import { UserError } from './errors';
 import { lucia } from './auth/lucia';
 import { MIN_PASSWORD_LENGTH, burnVerification, hashPassword, verifyPassword } from './auth/password';
 import { db } from './db';
 import { Shop, User } from './db/models';
+import { seedStarterSheets } from './specs';
 import * as throttle from './throttle';
 
 export const emailField = z
@@ -38,14 +40,7 @@ export const signInSchema = z.object({
 	password: z.string({ error: 'Enter your password.' }).min(1, 'Enter your password.').max(200)
 });
 
-export class UserError extends Error {
-	constructor(
-		message: string,
-		readonly field?: string
-	) {
-		super(message);
-	}
-}
+export { UserError };
 
 export async function emailTaken(email: string): Promise<boolean> {
 	const where = { [Op.and]: [db().where(db().fn('lower', db().col('email')), email.toLowerCase()), { active: true }] };
@@ -62,6 +57,7 @@ export async function signUp(input: z.infer<typeof signUpSchema>) {
 			{ shopId: shop.id, email: input.email, name: input.name, role: 'owner', passwordHash },
 			{ transaction }
 		);
+		await seedStarterSheets(shop.id, transaction);
 		await audit.record({ shopId: shop.id, userId: owner.id, action: 'shop.created', entity: 'shop', entityId: shop.id }, transaction);
 		return owner;
 	});

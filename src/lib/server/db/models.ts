@@ -7,6 +7,7 @@ import {
 	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
+import type { CONDITIONS, FUELS, JobStatus, ReadingResult, UnitKind, VOLTAGES } from '../../domain';
 
 export const ROLES = ['owner', 'manager', 'writer', 'technician'] as const;
 export type Role = (typeof ROLES)[number];
@@ -89,15 +90,8 @@ export class Customer extends Model<InferAttributes<Customer>, InferCreationAttr
 	declare updatedAt: CreationOptional<Date>;
 }
 
-export const UNIT_KINDS = ['portable', 'inverter', 'standby', 'pressure_washer', 'other'] as const;
-export type UnitKind = (typeof UNIT_KINDS)[number];
-export const VOLTAGES = ['120', '120/240'] as const;
-export const FUELS = ['gasoline', 'propane', 'natural_gas', 'diesel', 'dual_fuel', 'tri_fuel'] as const;
-export const CONDITIONS = ['excellent', 'good', 'fair', 'poor'] as const;
-export const JOB_STATUSES = ['checked_in', 'diagnosing', 'quoted', 'approved', 'declined', 'in_repair', 'ready', 'picked_up'] as const;
-export type JobStatus = (typeof JOB_STATUSES)[number];
-export const READING_RESULTS = ['pass', 'low', 'high', 'open', 'short', 'noted'] as const;
-export type ReadingResult = (typeof READING_RESULTS)[number];
+export { CONDITIONS, FUELS, JOB_STATUSES, READING_RESULTS, UNIT_KINDS, VOLTAGES } from '../../domain';
+export type { JobStatus, ReadingResult, UnitKind } from '../../domain';
 
 /** NUMERIC columns travel as strings; wrap them in Decimal before any arithmetic. */
 type Numeric = string;
@@ -123,7 +117,8 @@ export class Unit extends Model<InferAttributes<Unit>, InferCreationAttributes<U
 	declare updatedAt: CreationOptional<Date>;
 }
 
-export class SpecSheet extends Model<InferAttributes<SpecSheet>, InferCreationAttributes<SpecSheet>> {
+export class SpecSheet extends Model<InferAttributes<SpecSheet, { omit: 'getItems' }>, InferCreationAttributes<SpecSheet, { omit: 'getItems' }>> {
+	declare getItems: import('sequelize').HasManyGetAssociationsMixin<SpecItem>;
 	declare id: CreationOptional<string>;
 	declare shopId: ForeignKey<Shop['id']>;
 	declare name: string;

@@ -74,6 +74,9 @@ export const up: Migration = async ({ context: sequelize }) => {
 			failed_component varchar(120) NOT NULL DEFAULT '',
 			findings text NOT NULL DEFAULT '',
 			search_text text NOT NULL DEFAULT '',
+			customer_name varchar(120) NOT NULL DEFAULT '',
+			unit_label varchar(170) NOT NULL DEFAULT '',
+			technician_name varchar(120),
 			lock_version integer NOT NULL DEFAULT 0,
 			created_by uuid REFERENCES users(id),
 			status_changed_at timestamptz NOT NULL DEFAULT now(),
@@ -84,6 +87,11 @@ export const up: Migration = async ({ context: sequelize }) => {
 		CREATE INDEX jobs_board_idx ON jobs (shop_id, created_at DESC, id);
 		CREATE INDEX jobs_status_idx ON jobs (shop_id, status, created_at DESC);
 		CREATE INDEX jobs_tech_idx ON jobs (shop_id, technician_id, created_at DESC);
+		CREATE INDEX jobs_customer_sort_idx ON jobs (shop_id, customer_name, id);
+		CREATE INDEX jobs_unit_sort_idx ON jobs (shop_id, unit_label, id);
+		CREATE INDEX jobs_tech_sort_idx ON jobs (shop_id, technician_name, id);
+		CREATE INDEX jobs_promised_idx ON jobs (shop_id, promised_on, id);
+		CREATE INDEX jobs_changed_idx ON jobs (shop_id, status_changed_at, id);
 		CREATE INDEX jobs_unit_idx ON jobs (unit_id);
 		CREATE INDEX jobs_search_idx ON jobs USING gin (search_text gin_trgm_ops);
 

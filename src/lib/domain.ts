@@ -1,0 +1,87 @@
+// The shop's vocabulary, shared by server and pages: kinds, statuses and their plain-word labels.
+
+export const UNIT_KINDS = ['portable', 'inverter', 'standby', 'pressure_washer', 'other'] as const;
+export type UnitKind = (typeof UNIT_KINDS)[number];
+export const UNIT_KIND_LABELS: Record<UnitKind, string> = {
+	portable: 'Portable generator',
+	inverter: 'Inverter generator',
+	standby: 'Home standby generator',
+	pressure_washer: 'Pressure washer',
+	other: 'Other small engine'
+};
+
+export const VOLTAGES = ['120', '120/240'] as const;
+export const VOLTAGE_LABELS: Record<(typeof VOLTAGES)[number], string> = { '120': '120 V', '120/240': '120/240 V' };
+
+export const FUELS = ['gasoline', 'propane', 'natural_gas', 'diesel', 'dual_fuel', 'tri_fuel'] as const;
+export const FUEL_LABELS: Record<(typeof FUELS)[number], string> = {
+	gasoline: 'Gasoline',
+	propane: 'Propane',
+	natural_gas: 'Natural gas',
+	diesel: 'Diesel',
+	dual_fuel: 'Dual fuel',
+	tri_fuel: 'Tri-fuel'
+};
+
+export const CONDITIONS = ['excellent', 'good', 'fair', 'poor'] as const;
+export const CONDITION_LABELS: Record<(typeof CONDITIONS)[number], string> = {
+	excellent: 'Excellent',
+	good: 'Good',
+	fair: 'Fair',
+	poor: 'Poor'
+};
+
+export const JOB_STATUSES = ['checked_in', 'diagnosing', 'quoted', 'approved', 'declined', 'in_repair', 'ready', 'picked_up'] as const;
+export type JobStatus = (typeof JOB_STATUSES)[number];
+export const STATUS_LABELS: Record<JobStatus, string> = {
+	checked_in: 'Checked in',
+	diagnosing: 'Diagnosing',
+	quoted: 'Quoted',
+	approved: 'Approved',
+	declined: 'Declined',
+	in_repair: 'In repair',
+	ready: 'Ready for pick-up',
+	picked_up: 'Picked up'
+};
+
+/** The only moves a job may make. A declined unit still goes home with its owner. */
+export const NEXT_STATUSES: Record<JobStatus, readonly JobStatus[]> = {
+	checked_in: ['diagnosing'],
+	diagnosing: ['quoted'],
+	quoted: ['approved', 'declined', 'diagnosing'],
+	approved: ['in_repair'],
+	declined: ['picked_up'],
+	in_repair: ['ready'],
+	ready: ['picked_up'],
+	picked_up: []
+};
+
+/** The button that makes each move, in the shop's words. */
+export const MOVE_LABELS: Record<JobStatus, string> = {
+	checked_in: 'Check in',
+	diagnosing: 'Start diagnosis',
+	quoted: 'Mark as quoted',
+	approved: 'Record approval',
+	declined: 'Record decline',
+	in_repair: 'Start the repair',
+	ready: 'Repair finished',
+	picked_up: 'Handed back'
+};
+
+export const READING_RESULTS = ['pass', 'low', 'high', 'open', 'short', 'noted'] as const;
+export type ReadingResult = (typeof READING_RESULTS)[number];
+export const RESULT_LABELS: Record<ReadingResult, string> = {
+	pass: 'In spec',
+	low: 'Low',
+	high: 'High',
+	open: 'Open circuit',
+	short: 'Short',
+	noted: 'Noted'
+};
+
+export const MEASURE_UNITS = ['Ω', 'kΩ', 'MΩ', 'V', 'A', 'Hz', 'mm', 'µF', 'rpm', 'psi'] as const;
+
+export function describeUnit(unit: { maker?: string | null; model?: string | null; kind: UnitKind }): string {
+	const name = [unit.maker, unit.model].filter(Boolean).join(' ');
+	return name ? `${name} · ${UNIT_KIND_LABELS[unit.kind].toLowerCase()}` : UNIT_KIND_LABELS[unit.kind];
+}

@@ -1,0 +1,28 @@
+import { fail, redirect } from '@sveltejs/kit';
+import type { Actions, PageServerLoad } from './$types';
+import { FRONT_DESK, STAFF } from '$lib/roles';
+import { requireRole } from '$lib/server/auth/guard';
+import * as customers from '$lib/server/customers';
+import { echo, parseForm } from '$lib/server/forms';
+
+export const load: PageServerLoad = async ({ url }) => {
+	const user = requireRole(STAFF);
+	const q = url.searchParams.get('q') ?? '';
+	const found = await customers.search(user.shopId, q);
+	return {
+		q,
+		canCreate: FRONT_DESK.includes(user.role),
+		customers: found.map((c) => ({ id: c.id, name: c.name, phone: c.phone, email: c.email, address: c.address }))
+	};
+};
+
+export const actions: Actions = {
+	create: async ({ request }) => {
+		const user = requireRole(FRONT_DESK);
+		const form = await request.formData();
+		const parsed = parseForm(customers.customerSchema, form);
+		if (!parsed.ok) return fail(400, { message: parsed.message, errors: parsed.errors, ...echo(form) });
+		const customer = await customers.create(user, parsed.data);
+		redirect(303, `/customers/${customer.id}`);
+	}
+};
