@@ -14,6 +14,11 @@ const matrix: Record<string, Record<Who, Expect>> = {
 	'/api/me': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/signin': { anonymous: 'ok', owner: 'home', manager: 'home', writer: 'home', technician: 'home' },
 	'/signup': { anonymous: 'ok', owner: 'home', manager: 'home', writer: 'home', technician: 'home' },
+	'/jobs': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/api/jobs': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/customers': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/specs': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/specs/new': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
 	'/api/health': { anonymous: 'ok', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' }
 };
 

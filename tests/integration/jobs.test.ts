@@ -1,0 +1,185 @@
+import { beforeAll, describe, expect, it } from 'vitest';
+import { AuditEvent, Job, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
+import { judge } from '../../src/lib/server/readings';
+import { Client, signedIn } from '../helpers/client';
+import { createShop, type ShopFixture } from '../helpers/fixtures';
+import { createJob } from '../helpers/shopdata';
+
+let shop: ShopFixture;
+let other: ShopFixture;
+const as = {} as Record<'owner' | 'manager' | 'writer' | 'technician', Client>;
+let otherOwner: Client;
+
+beforeAll(async () => {
+	[shop, other] = await Promise.all([createShop('Jobs'), createShop('Jobs other')]);
+	for (const role of ['owner', 'manager', 'writer', 'technician'] as const) as[role] = await signedIn(shop.staff[role].email, shop.staff[role].password);
+	otherOwner = await signedIn(other.staff.owner.email, other.staff.owner.password);
+});
+
+const idFrom = (location: string | null) => location!.split('/').pop()!;
+
+describe('customers, units and check-in', () => {
+	it('a writer records a customer and a unit and checks it in; job numbers count up per shop', async () => {
+		const made = await as.writer.form('/customers?/create', { name: 'Linnea Harrow', phone: '555-0133', email: '', address: '', notes: '' });
+		expect(made.status).toBe(303);
+		const customerId = idFrom(made.location);
+		const unit = await as.writer.form(`/customers/${customerId}?/addUnit`, {
+			kind: 'portable', maker: 'Harrowgate', model: 'PG-5500', serial: 'HG55-1', runningWatts: '5500', startingWatts: '6875',
+			voltage: '120/240', fuel: 'gasoline', engineHours: '150', yearBought: '2020', pricePaid: '899', condition: 'good', notes: ''
+		});
+		expect(unit.status).toBe(303);
+		const unitId = idFrom(unit.location);
+		const first = await as.writer.form(`/units/${unitId}?/checkIn`, { complaint: 'No output', diagnosticFee: '89.00', promisedOn: '', technicianId: '' });
+		const second = await as.writer.form(`/units/${unitId}?/checkIn`, { complaint: 'Still no output', diagnosticFee: '0', promisedOn: '', technicianId: '' });
+		const [a, b] = await Promise.all([Job.findByPk(idFrom(first.location)), Job.findByPk(idFrom(second.location))]);
+		expect(b!.number).toBe(a!.number + 1);
+		expect(a!.status).toBe('checked_in');
+		const ticket = await as.writer.get(`/jobs/${a!.id}/ticket`);
+		expect(ticket.status).toBe(200);
+		expect(ticket.text).toContain(`#${a!.number}`);
+		expect(ticket.text).toContain('Linnea Harrow');
+	});
+
+	it('bad unit and check-in input is refused field by field and nothing is saved', async () => {
+		const { customer, unit } = await createJob(shop);
+		const badUnit = await as.writer.form(`/customers/${customer.id}?/addUnit`, {
+			kind: 'spaceship', runningWatts: '-5', startingWatts: 'lots', voltage: '480', fuel: 'gasoline', engineHours: 'NaN', yearBought: '1800', pricePaid: '1e999', condition: 'good'
+		});
+		expect(badUnit.status).toBe(400);
+		expect(badUnit.text).toContain('Choose what kind of unit it is.');
+		expect(badUnit.text).toContain('Running watts must be at least 0.');
+		const before = await Job.count({ where: { shopId: shop.id } });
+		const badJob = await as.writer.form(`/units/${unit.id}?/checkIn`, { complaint: '', diagnosticFee: '-1', promisedOn: 'soon', technicianId: other.staff.technician.id });
+		expect(badJob.status).toBe(400);
+		expect(badJob.text).toContain("Write down the customer's complaint.");
+		expect(await Job.count({ where: { shopId: shop.id } })).toBe(before);
+		const foreignTech = await as.writer.form(`/units/${unit.id}?/checkIn`, { complaint: 'x', diagnosticFee: '1', promisedOn: '', technicianId: other.staff.technician.id });
+		expect(foreignTech.status).toBe(400);
+		expect(foreignTech.text).toContain('Pick a technician from your own team.');
+		expect(await Job.count({ where: { shopId: shop.id } })).toBe(before);
+	});
+
+	it('technicians cannot create customers or check units in', async () => {
+		const { unit } = await createJob(shop);
+		expect((await as.technician.form('/customers?/create', { name: 'Nope' })).status).toBe(403);
+		expect((await as.technician.form(`/units/${unit.id}?/checkIn`, { complaint: 'x', diagnosticFee: '1' })).status).toBe(403);
+	});
+});
+
+describe('job status', () => {
+	it('moves only along the allowed path, each move an audit event with who, when, from and to', async () => {
+		const { job } = await createJob(shop);
+		const skip = await as.technician.form(`/jobs/${job.id}?/move`, { to: 'ready' });
+		expect(skip.status).toBe(400);
+		expect(skip.text).toContain('A job that is "Checked in" cannot become "Ready for pick-up".');
+		expect(skip.text).toContain('Next it can be "Diagnosing"');
+		expect((await as.technician.form(`/jobs/${job.id}?/move`, { to: 'diagnosing' })).status).toBe(200);
+		expect((await as.technician.form(`/jobs/${job.id}?/move`, { to: 'quoted' })).status).toBe(200);
+		const techApproves = await as.technician.form(`/jobs/${job.id}?/move`, { to: 'approved' });
+		expect(techApproves.status).toBe(400);
+		expect(techApproves.text).toContain('Your role cannot mark a job "Approved"');
+		expect((await as.writer.form(`/jobs/${job.id}?/move`, { to: 'approved' })).status).toBe(200);
+		const nonsense = await as.writer.form(`/jobs/${job.id}?/move`, { to: 'exploded' });
+		expect(nonsense.status).toBe(400);
+
+		const events = await AuditEvent.findAll({ where: { shopId: shop.id, entity: 'job', entityId: job.id, action: 'job.status' }, order: [['id', 'ASC']] });
+		expect(events.map((e) => [e.detail.from, e.detail.to])).toEqual([
+			[null, 'checked_in'],
+			['checked_in', 'diagnosing'],
+			['diagnosing', 'quoted'],
+			['quoted', 'approved']
+		]);
+		expect(events[1].userId).toBe(shop.staff.technician.id);
+		expect(events[3].userId).toBe(shop.staff.writer.id);
+		expect(events.every((e) => e.createdAt instanceof Date)).toBe(true);
+		expect((await Job.findByPk(job.id))!.status).toBe('approved');
+	});
+
+	it('a second save of findings from a stale page is a clear conflict and loses nothing', async () => {
+		const { job } = await createJob(shop);
+		const first = await as.technician.form(`/jobs/${job.id}?/findings`, { failedComponent: 'rotor', findings: 'Open field winding', lockVersion: String(job.lockVersion) });
+		expect(first.status).toBe(200);
+		const stale = await as.owner.form(`/jobs/${job.id}?/findings`, { failedComponent: 'stator', findings: 'My other notes', lockVersion: String(job.lockVersion) });
+		expect(stale.status).toBe(400);
+		expect(stale.text).toContain('Someone else saved this job after you opened it.');
+		expect(stale.text).toContain('My other notes');
+		const saved = await Job.findByPk(job.id);
+		expect(saved!.failedComponent).toBe('rotor');
+	});
+});
+
+describe('bench readings', () => {
+	it('each reading is judged against its spec: pass, low, high, open, short', async () => {
+		const { job } = await createJob(shop);
+		const sheet = await SpecSheet.findOne({ where: { shopId: shop.id } }) ?? null;
+		expect(sheet).toBeNull(); // fixture shops start without sheets; make one through the page
+		const created = await as.manager.form('/specs/new?/save', {
+			name: 'Bench test sheet', appliesTo: '', notes: '',
+			label: 'Stator winding', unit: 'Ω', min: '0.3', max: '0.5', openAbove: '1000', shortBelow: '0.05', running: 'off', source: 'common practice'
+		});
+		expect(created.status).toBe(303);
+		const item = await SpecItem.findOne({ where: { shopId: shop.id } });
+		expect((await as.technician.form(`/jobs/${job.id}?/sheet`, { id: item!.sheetId })).status).toBe(200);
+		// 0.4 Ω in a 0.3–0.5 Ω spec passes — common practice for a 5 kW-class portable stator, no source.
+		const cases: [string, string][] = [['0.4', 'pass'], ['0.3', 'pass'], ['0.5', 'pass'], ['0.25', 'low'], ['0.9', 'high'], ['OL', 'open'], ['2000', 'open'], ['0.01', 'short']];
+		for (const [value, expected] of cases) {
+			const reply = await as.technician.form(`/jobs/${job.id}?/reading`, { specItemId: item!.id, value });
+			expect(reply.status, value).toBe(200);
+			const last = await Reading.findOne({ where: { jobId: job.id }, order: [['createdAt', 'DESC'], ['id', 'DESC']] });
+			expect([value, last!.result]).toEqual([value, expected]);
+		}
+		const bad = await as.technician.form(`/jobs/${job.id}?/reading`, { specItemId: item!.id, value: 'twelve' });
+		expect(bad.status).toBe(400);
+		expect(bad.text).toContain('Enter the reading as a number');
+		expect(await Reading.count({ where: { jobId: job.id } })).toBe(cases.length);
+		const page = await as.technician.get(`/jobs/${job.id}`);
+		expect(page.text).toContain('Open circuit');
+	});
+
+	it('the judge treats the bounds as inclusive and an over-range meter as open', () => {
+		const spec = { minValue: '0.3', maxValue: '0.5', openAbove: null, shortBelow: null };
+		expect(judge(spec, '0.3')).toBe('pass');
+		expect(judge(spec, '0.5')).toBe('pass');
+		expect(judge(spec, 'ol')).toBe('open');
+		expect(judge({ minValue: '1', maxValue: null, openAbove: null, shortBelow: null }, '250')).toBe('pass');
+	});
+});
+
+describe('shop isolation for every id', () => {
+	it("another shop's customer, unit, job, spec sheet and reading are not found", async () => {
+		const { customer, unit, job } = await createJob(shop);
+		await as.technician.form(`/jobs/${job.id}?/reading`, { label: 'Output voltage', unit: 'V', value: '0' });
+		const reading = await Reading.findOne({ where: { jobId: job.id } });
+		expect(reading!.result).toBe('noted');
+		for (const path of [`/customers/${customer.id}`, `/units/${unit.id}`, `/jobs/${job.id}`, `/jobs/${job.id}/ticket`]) {
+			expect((await otherOwner.get(path)).status, path).toBe(404);
+		}
+		const moves = [
+			otherOwner.form(`/jobs/${job.id}?/move`, { to: 'diagnosing' }),
+			otherOwner.form(`/jobs/${job.id}?/findings`, { failedComponent: 'x', findings: 'y', lockVersion: '1' }),
+			otherOwner.form(`/jobs/${job.id}?/reading`, { label: 'x', unit: 'V', value: '1' }),
+			otherOwner.form(`/jobs/${job.id}?/removeReading`, { readingId: reading!.id }),
+			otherOwner.form(`/jobs/${job.id}?/assign`, { id: other.staff.technician.id }),
+			otherOwner.form(`/customers/${customer.id}?/update`, { name: 'Taken over' }),
+			otherOwner.form(`/units/${unit.id}?/checkIn`, { complaint: 'x', diagnosticFee: '1' })
+		];
+		for (const reply of await Promise.all(moves)) expect([400, 404]).toContain(reply.status);
+		const after = await Job.findByPk(job.id);
+		expect(after!.status).toBe('checked_in');
+		expect(after!.findings).toBe('');
+		expect(await Reading.count({ where: { jobId: job.id } })).toBe(1);
+		// A reading of this shop cannot be attached to the other shop's spec item either.
+		const otherSheet = await otherOwner.form('/specs/new?/save', { name: 'Other', label: 'x', unit: 'V', min: '1', max: '2', running: 'off' });
+		const otherItem = await SpecItem.findOne({ where: { shopId: other.id } });
+		expect(otherSheet.status).toBe(303);
+		const cross = await as.technician.form(`/jobs/${job.id}?/reading`, { specItemId: otherItem!.id, value: '1' });
+		expect(cross.status).toBe(400);
+		expect((await as.owner.get(`/specs/${otherItem!.sheetId}`)).status).toBe(404);
+	});
+
+	it('random and malformed ids are 404, never a server error', async () => {
+		for (const path of ['/jobs/00000000-0000-4000-8000-000000000000', '/jobs/not-a-uuid', '/customers/%27%3B--', '/units/123', '/specs/zzz']) {
+			expect((await as.owner.get(path)).status, path).toBe(404);
+		}
+	});
+});
