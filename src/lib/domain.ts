@@ -85,3 +85,13 @@ export function describeUnit(unit: { maker?: string | null; model?: string | nul
 	const name = [unit.maker, unit.model].filter(Boolean).join(' ');
 	return name ? `${name} · ${UNIT_KIND_LABELS[unit.kind].toLowerCase()}` : UNIT_KIND_LABELS[unit.kind];
 }
+
+/** Expected life of a unit by kind, used until the replacement catalog says otherwise.
+ * Common practice for residential-duty equipment, no published source. */
+export const EXPECTED_LIFE: Record<UnitKind, { years: number; hours: number }> = {
+	portable: { years: 10, hours: 1500 },
+	inverter: { years: 10, hours: 2000 },
+	standby: { years: 20, hours: 30000 },
+	pressure_washer: { years: 8, hours: 500 },
+	other: { years: 10, hours: 1000 }
+};

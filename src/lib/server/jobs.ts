@@ -14,6 +14,13 @@ interface Actor {
 	role: RoleName;
 }
 
+/** A move made by the customer through their link: no staff member, the desk's rights. */
+export interface CustomerActor {
+	id: null;
+	shopId: string;
+	role: 'writer';
+}
+
 export const checkInSchema = z.object({
 	complaint: requiredText(2000, "Write down the customer's complaint."),
 	diagnosticFee: decimalString('The diagnostic fee', { max: '100000' }),
@@ -119,7 +126,7 @@ export async function detail(shopId: string, id: string) {
 }
 
 /** Moves a job along its allowed path; anything else is refused with a reason. */
-export async function transition(actor: Actor, jobId: string, to: string, transaction?: Transaction) {
+export async function transition(actor: Actor | CustomerActor, jobId: string, to: string, transaction?: Transaction) {
 	const run = async (t: Transaction) => {
 		const job = isUuid(jobId) ? await Job.findOne({ where: { id: jobId, shopId: actor.shopId }, lock: t.LOCK.UPDATE, transaction: t }) : null;
 		if (!job) throw new UserError('No such job in your shop.');

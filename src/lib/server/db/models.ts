@@ -233,6 +233,60 @@ export class ReplacementUnit extends Model<InferAttributes<ReplacementUnit>, Inf
 	declare updatedAt: CreationOptional<Date>;
 }
 
+export class Quote extends Model<InferAttributes<Quote>, InferCreationAttributes<Quote>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare jobId: ForeignKey<Job['id']>;
+	declare draft: Record<string, unknown>;
+	declare lockVersion: CreationOptional<number>;
+	declare sentVersions: CreationOptional<number>;
+	declare editedSinceSend: CreationOptional<boolean>;
+	declare updatedBy: ForeignKey<User['id']> | null;
+	declare createdAt: CreationOptional<Date>;
+	declare updatedAt: CreationOptional<Date>;
+}
+
+export class QuoteVersion extends Model<InferAttributes<QuoteVersion>, InferCreationAttributes<QuoteVersion>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare quoteId: ForeignKey<Quote['id']>;
+	declare number: number;
+	declare content: Record<string, unknown>;
+	declare result: Record<string, unknown>;
+	declare contentHash: string;
+	declare currency: string;
+	declare validUntil: string;
+	declare sentBy: ForeignKey<User['id']> | null;
+	declare sentAt: CreationOptional<Date>;
+}
+
+export class QuoteLink extends Model<InferAttributes<QuoteLink>, InferCreationAttributes<QuoteLink>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare quoteId: ForeignKey<Quote['id']>;
+	declare versionId: ForeignKey<QuoteVersion['id']>;
+	declare tokenHash: string;
+	declare expiresAt: Date;
+	declare revokedAt: CreationOptional<Date | null>;
+	declare createdAt: CreationOptional<Date>;
+}
+
+export class Approval extends Model<InferAttributes<Approval>, InferCreationAttributes<Approval>> {
+	declare id: CreationOptional<string>;
+	declare shopId: ForeignKey<Shop['id']>;
+	declare quoteId: ForeignKey<Quote['id']>;
+	declare versionId: ForeignKey<QuoteVersion['id']>;
+	declare decision: 'approved' | 'declined';
+	declare optionIndex: number | null;
+	declare optionLabel: string | null;
+	declare signerName: string | null;
+	declare reason: CreationOptional<string>;
+	declare clientAddress: string;
+	declare userAgent: CreationOptional<string>;
+	declare versionHash: string;
+	declare createdAt: CreationOptional<Date>;
+}
+
 const id = { type: DataTypes.UUID, defaultValue: DataTypes.UUIDV4, primaryKey: true };
 const shopId = { type: DataTypes.UUID, allowNull: false };
 const createdAt = { type: DataTypes.DATE, allowNull: false };
@@ -476,6 +530,69 @@ export function initModels(sequelize: Sequelize): void {
 			updatedAt: createdAt
 		},
 		{ sequelize, tableName: 'replacement_units' }
+	);
+
+	Quote.init(
+		{
+			id,
+			shopId,
+			jobId: ref(),
+			draft: { type: DataTypes.JSONB, allowNull: false },
+			lockVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			sentVersions: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+			editedSinceSend: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
+			updatedBy: ref(true),
+			createdAt,
+			updatedAt: createdAt
+		},
+		{ sequelize, tableName: 'quotes' }
+	);
+	QuoteVersion.init(
+		{
+			id,
+			shopId,
+			quoteId: ref(),
+			number: { type: DataTypes.INTEGER, allowNull: false },
+			content: { type: DataTypes.JSONB, allowNull: false },
+			result: { type: DataTypes.JSONB, allowNull: false },
+			contentHash: { type: DataTypes.CHAR(64), allowNull: false },
+			currency: { type: DataTypes.CHAR(3), allowNull: false },
+			validUntil: { type: DataTypes.DATEONLY, allowNull: false },
+			sentBy: ref(true),
+			sentAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW }
+		},
+		{ sequelize, tableName: 'quote_versions', timestamps: false }
+	);
+	QuoteLink.init(
+		{
+			id,
+			shopId,
+			quoteId: ref(),
+			versionId: ref(),
+			tokenHash: { type: DataTypes.CHAR(64), allowNull: false },
+			expiresAt: { type: DataTypes.DATE, allowNull: false },
+			revokedAt: { type: DataTypes.DATE, allowNull: true },
+			createdAt
+		},
+		{ sequelize, tableName: 'quote_links', updatedAt: false }
+	);
+	Approval.init(
+		{
+			id,
+			shopId,
+			quoteId: ref(),
+			versionId: ref(),
+			decision: { type: DataTypes.STRING(10), allowNull: false },
+			optionIndex: { type: DataTypes.INTEGER, allowNull: true },
+			optionLabel: { type: DataTypes.STRING(120), allowNull: true },
+			signerName: { type: DataTypes.STRING(120), allowNull: true },
+			reason: { type: DataTypes.STRING(1000), allowNull: false, defaultValue: '' },
+			clientAddress: { type: DataTypes.STRING(100), allowNull: false },
+			userAgent: { type: DataTypes.STRING(400), allowNull: false, defaultValue: '' },
+			versionHash: { type: DataTypes.CHAR(64), allowNull: false },
+			createdAt
+		},
+		{ sequelize, tableName: 'approvals', updatedAt: false }
 	);
 
 	Shop.hasMany(User, { foreignKey: 'shopId' });
