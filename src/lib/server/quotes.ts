@@ -2,6 +2,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { Op, type Transaction } from 'sequelize';
 import { EXPECTED_LIFE, type JobStatus } from '../domain';
 import { evaluateRequest, type EvaluateResponse, type PricingResult } from '../pricing/evaluate';
+import { settingsToJson } from '../pricing/settings';
 import type { RoleName } from '../roles';
 import * as audit from './audit';
 import { db } from './db';
@@ -145,7 +146,8 @@ export async function send(actor: Actor, jobId: string) {
 		if (await Approval.findOne({ where: { quoteId: quote.id }, transaction })) throw new UserError('The customer has already answered this quote.');
 		if (!SENDABLE.includes(job.status as JobStatus)) throw new UserError('This job is past quoting.');
 		const shopSettings = await settings.get(actor.shopId, transaction);
-		const request = { ...(await requestFor(actor.shopId, job, quote.draft as unknown as QuoteDraft, transaction)), settings: shopSettings.pricing };
+		// The version carries the settings in force, so it can be priced again exactly as sent.
+		const request = { ...(await requestFor(actor.shopId, job, quote.draft as unknown as QuoteDraft, transaction)), settings: settingsToJson(shopSettings.pricing) };
 		const priced = evaluateRequest(request);
 		if (!priced.ok) throw new DraftInvalid(priced.message, priced.issues);
 

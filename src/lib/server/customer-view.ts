@@ -1,0 +1,90 @@
+import { Customer, Job, Reading, Shop, Unit } from './db/models';
+import type { PricingResult } from '../pricing/evaluate';
+import { RESULT_LABELS, describeUnit, type ReadingResult } from '../domain';
+import * as photos from './photos';
+import type { byToken } from './quotes';
+import { show } from './readings';
+
+type Found = NonNullable<Awaited<ReturnType<typeof byToken>>>;
+
+const VERDICT_WORDS = { repair: 'Repair is the better buy', replace: 'Replacing is the better buy', 'close-call': 'A close call', 'no-comparison': 'No comparison' } as const;
+
+/** Money strings from the engine, formatted for people; Intl formats the decimal string exactly. */
+export function moneyFormatter(currency: string, digits: number) {
+	const format = new Intl.NumberFormat('en-US', { style: 'currency', currency, minimumFractionDigits: digits, maximumFractionDigits: digits });
+	return (amount: string | null | undefined) => (amount === null || amount === undefined ? '' : format.format(amount as unknown as number));
+}
+
+/** Everything the customer's page shows, and nothing more: no costs, margins or staff names. */
+export async function customerView(found: Found) {
+	const version = found.state === 'replaced' ? found.latest : found.version;
+	const shopId = found.quote.shopId;
+	const job = (await Job.findOne({ where: { id: found.quote.jobId, shopId } }))!;
+	const [shop, unit, customer, taken, pictures] = await Promise.all([
+		Shop.findByPk(shopId, { attributes: ['name', 'phone', 'email', 'address'] }),
+		Unit.findOne({ where: { id: job.unitId, shopId } }),
+		Customer.findOne({ where: { id: job.customerId, shopId }, attributes: ['name'] }),
+		Reading.findAll({ where: { shopId, jobId: job.id }, order: [['createdAt', 'ASC']] }),
+		photos.listForCustomer(shopId, job.id)
+	]);
+	const result = version.result as unknown as PricingResult;
+	const money = moneyFormatter(result.currency, result.minorDigits);
+	const content = version.content as { options: { label: string; kind: string }[] };
+	return {
+		state: found.state,
+		shop: shop!.get({ plain: true }),
+		customerName: customer!.name,
+		job: { number: job.number, complaint: job.complaint, failedComponent: job.failedComponent, findings: job.findings },
+		unit: { label: describeUnit(unit!), serial: unit!.serial },
+		readings: taken.map((r) => ({
+			label: r.label,
+			shown: show(r),
+			range: r.minValue !== null && r.maxValue !== null ? `${Number(r.minValue)}–${Number(r.maxValue)} ${r.unit}` : r.minValue !== null ? `at least ${Number(r.minValue)} ${r.unit}` : r.maxValue !== null ? `at most ${Number(r.maxValue)} ${r.unit}` : '',
+			result: r.result as ReadingResult,
+			resultLabel: RESULT_LABELS[r.result as ReadingResult]
+		})),
+		photos: pictures.map((p) => ({ id: p.id, caption: p.caption })),
+		version: { number: version.number, hash: version.contentHash, validUntil: version.validUntil, sentAt: version.sentAt.toISOString() },
+		linkVersion: found.version.number,
+		options: result.options.map((o) => ({
+			index: o.index,
+			label: o.label,
+			kind: content.options[o.index]?.kind ?? o.kind,
+			lines: o.lines.map((l) => ({
+				description: l.description,
+				quantity: l.quantity,
+				unitPrice: money(l.unitPrice),
+				amount: money(l.sell)
+			})),
+			staged: o.staged
+				? {
+						stages: o.staged.stages.map((s) => ({ label: s.label, likelihood: s.likelihood, reach: s.reachPercent, total: money(s.total) })),
+						expected: money(o.staged.expectedCost),
+						worstCase: money(o.staged.worstCase),
+						notToExceed: money(o.staged.notToExceed)
+					}
+				: null,
+			subtotal: money(o.subtotal),
+			tax: money(o.tax),
+			total: money(o.total),
+			deposit: money(o.deposit),
+			depositRaw: o.deposit,
+			balance: money(o.balance),
+			recommended: result.recommendation.optionIndex === o.index
+		})),
+		comparison: {
+			verdict: VERDICT_WORDS[result.recommendation.verdict],
+			reasons: [...result.recommendation.reasons, ...result.repairs.flatMap((r) => r.reasons)],
+			breakEven: result.repairs.map((r) => (r.comparison ? { label: r.label, worth: money(r.comparison.breakEvenRepair) } : null)).filter(Boolean)
+		},
+		approval: found.approval
+			? {
+					decision: found.approval.decision,
+					optionLabel: found.approval.optionLabel,
+					optionIndex: found.approval.optionIndex,
+					signerName: found.approval.signerName,
+					at: found.approval.createdAt.toISOString()
+				}
+			: null
+	};
+}
