@@ -1,12 +1,13 @@
 // Measures the pricing engine: evaluations per second for 5-, 20- and 100-line quotes (a repair
 // against a replacement, with the full repair-or-replace economics), beside a plain-number baseline
-// doing the same arithmetic and building the same strings. Bounded: about eight seconds in all.
+// doing the same arithmetic and building the same strings. Bounded: about ten seconds in all.
+import { cpus, loadavg } from 'node:os';
 import { evaluate, evaluateRequest, resolveSettings } from '../src/lib/pricing/evaluate';
 import { pricingRequestSchema, type PricingRequest, type PricingRequestInput } from '../src/lib/pricing/schema';
 import type { PricingSettings } from '../src/lib/pricing/settings';
 
-const ROUND_MS = 60;
-const ROUNDS = 9;
+const ROUND_MS = 50;
+const ROUNDS = 7;
 
 type LineBody = Record<string, unknown>;
 
@@ -51,8 +52,6 @@ function quoteBody(total: number, engineHours = '420', statedLife: string | unde
  * time, so a busy neighbour on the machine does not count against the engine.
  */
 function measure(run: (k: number) => unknown): number {
-	const warm = performance.now();
-	for (let k = 0; performance.now() - warm < 250; k++) run(k);
 	const perCall: number[] = [];
 	let k = 0;
 	for (let round = 0; round < ROUNDS; round++) {
@@ -226,13 +225,14 @@ function settingsFor(request: PricingRequest): PricingSettings {
 	return resolveSettings(undefined, { ...request.settings, currency: request.currency });
 }
 
-const rows: string[][] = [];
-const pad = (cells: string[]) => cells.map((cell, k) => (k === 0 ? cell.padEnd(34) : cell.padStart(12))).join('');
+interface Case {
+	name: string;
+	engine: (k: number) => unknown;
+	float: (k: number) => unknown;
+	full: ((k: number) => unknown) | null;
+}
 
-console.log(`Node ${process.version}, one process; CPU time per evaluation, median of ${ROUNDS} rounds of ${ROUND_MS} ms.\n`);
-console.log(pad(['quote', 'engine µs', 'engine /s', 'float µs', 'ratio', 'full µs', 'full /s']));
-
-for (const size of [5, 20, 100]) {
+function quoteCase(size: number): Case {
 	const body = quoteBody(size);
 	const request = pricingRequestSchema.parse(body);
 	const settings = settingsFor(request);
@@ -240,23 +240,60 @@ for (const size of [5, 20, 100]) {
 	if (!check.ok) throw new Error(`The benchmark quote is not valid: ${check.message}`);
 	const repairLines = floatLines(request, 0);
 	const replacementLines = floatLines(request, 1);
-
-	const engine = measure(() => evaluate(request, settings));
-	const float = measure(() => floatEvaluate(repairLines, replacementLines, 4, 420));
-	const full = measure(() => evaluateRequest(body));
-	rows.push([`${size} lines`, engine.toFixed(1), Math.round(1e6 / engine).toString(), float.toFixed(1), (engine / float).toFixed(1) + '×', full.toFixed(1), Math.round(1e6 / full).toString()]);
-	console.log(pad(rows[rows.length - 1]));
+	return {
+		name: `${size} lines`,
+		engine: () => evaluate(request, settings),
+		float: () => floatEvaluate(repairLines, replacementLines, 4, 420),
+		full: () => evaluateRequest(body)
+	};
 }
 
-// Life from engine hours gives a fractional n_r: every request below has a different one, so the
+// Life from engine hours gives a fractional n_r: every request here has a different one, so the
 // CRF memo misses each time and the fractional power is worked out in full.
-{
+function fractionalLifeCase(): Case {
 	const hours = (k: number) => 905 + (k % 2048) * 0.24;
 	const variants = Array.from({ length: 2048 }, (_, k) => pricingRequestSchema.parse(quoteBody(20, hours(k).toFixed(2), undefined)));
 	const settings = settingsFor(variants[0]);
 	const repairLines = floatLines(variants[0], 0);
 	const replacementLines = floatLines(variants[0], 1);
-	const engine = measure((k) => evaluate(variants[k % variants.length], settings));
-	const float = measure((k) => floatEvaluate(repairLines, replacementLines, null, hours(k)));
-	console.log(pad(['20 lines, life from hours (no memo)', engine.toFixed(1), Math.round(1e6 / engine).toString(), float.toFixed(1), (engine / float).toFixed(1) + '×', '', '']));
+	return {
+		name: '20 lines, life from hours (no memo)',
+		engine: (k) => evaluate(variants[k % variants.length], settings),
+		float: (k) => floatEvaluate(repairLines, replacementLines, null, hours(k)),
+		full: null
+	};
+}
+
+const cases = [quoteCase(5), quoteCase(20), quoteCase(100), fractionalLifeCase()];
+
+// Warm every path up first, so no figure pays for the compiler's first passes.
+for (let pass = 0; pass < 3; pass++) {
+	for (const c of cases) {
+		for (let k = 0; k < 1000; k++) c.engine(k);
+		for (let k = 0; k < 3000; k++) c.float(k);
+		for (let k = 0; c.full && k < 200; k++) c.full(k);
+	}
+}
+
+const pad = (cells: string[]) => cells.map((cell, k) => (k === 0 ? cell.padEnd(36) : cell.padStart(11))).join('');
+const load = loadavg().map((x) => x.toFixed(2)).join(' ');
+console.log(`Node ${process.version}, one process; CPU time per evaluation, median of ${ROUNDS} rounds of ${ROUND_MS} ms.`);
+console.log(`${cpus().length} CPUs (${cpus()[0]?.model ?? 'unknown'}), load average ${load} after warm-up.\n`);
+console.log(pad(['quote (repair vs replacement)', 'engine µs', 'engine /s', 'float µs', 'ratio', 'full µs', 'full /s']));
+
+for (const c of cases) {
+	const engine = measure(c.engine);
+	const float = measure(c.float);
+	const full = c.full ? measure(c.full) : null;
+	console.log(
+		pad([
+			c.name,
+			engine.toFixed(1),
+			Math.round(1e6 / engine).toString(),
+			float.toFixed(1),
+			(engine / float).toFixed(1) + '×',
+			full === null ? '' : full.toFixed(1),
+			full === null ? '' : Math.round(1e6 / full).toString()
+		])
+	);
 }

@@ -1,11 +1,12 @@
 #!/usr/bin/env node
 // `npm test`: the same bootstrap as `npm start` against a fresh test database, then every test
 // (unit, integration against PostgreSQL and the built app, browser). Ends with "N passed, N failed".
+import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import {
 	dataDir, buildDir, database, dbTask, ensureDebianPackages, ensureDependencies, freePort, log, root, run,
-	startChild, waitForHttp
+	startChild, tsx, waitForHttp
 } from './lib/bootstrap.mjs';
 
 const stops = [];
@@ -31,9 +32,48 @@ try {
 	log('building');
 	run(path.join(root, 'node_modules', '.bin', 'vite'), ['build', '--logLevel', 'error']);
 
+	// Tests always mail the local catcher, whatever SMTP_URL the shell has. Ports start at a random
+	// point so parallel test runs do not reach for the same ones.
+	const mailDir = path.join(dataDir, 'mail-test');
+	fs.rmSync(mailDir, { recursive: true, force: true });
+	const smtpPort = await freePort(20000 + Math.floor(Math.random() * 20000));
+	const mailApiPort = await freePort(smtpPort + 1);
+	const catcher = startChild('mail catcher', tsx, [
+		path.join(root, 'scripts', 'mail-fake.ts'), '--smtp-port', String(smtpPort), '--http-port', String(mailApiPort), '--dir', mailDir
+	], { stdio: ['ignore', 'ignore', 'inherit'] });
+	stops.push(() => catcher.stop());
+	await Promise.race([
+		waitForHttp(`http://127.0.0.1:${mailApiPort}/`),
+		new Promise((_, reject) => catcher.child.once('exit', (code) => reject(new Error(`the mail catcher could not start (exit ${code})`))))
+	]);
+	const mailEnv = { SMTP_URL: `smtp://127.0.0.1:${smtpPort}`, MAIL_CATCHER_URL: `http://127.0.0.1:${mailApiPort}` };
+
 	const port = await freePort(Number(process.env.TEST_PORT ?? 4310));
 	const origin = `http://127.0.0.1:${port}`;
-	const appEnv = { ...process.env, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: origin, BODY_SIZE_LIMIT: '26M' };
+
+	// Card payments always go to the local payment fake, whatever Stripe keys the shell has. It
+	// needs the app's webhook address, so it starts once the app's port is chosen.
+	const paymentPort = await freePort(port + 1);
+	const paymentEnv = {
+		STRIPE_SECRET_KEY: 'sk_test_local_fake',
+		STRIPE_WEBHOOK_SECRET: `whsec_${randomBytes(24).toString('hex')}`,
+		STRIPE_API_HOST: '127.0.0.1',
+		STRIPE_API_PORT: String(paymentPort),
+		STRIPE_API_PROTOCOL: 'http',
+		PAYMENT_FAKE_URL: `http://127.0.0.1:${paymentPort}`
+	};
+	const paymentData = path.join(dataDir, 'payment-fake-test.json');
+	fs.rmSync(paymentData, { force: true });
+	const paymentFake = startChild('payment fake', tsx, [path.join(root, 'scripts', 'payment-fake.ts'), '--port', String(paymentPort), '--data', paymentData], {
+		env: { ...process.env, ...paymentEnv, WEBHOOK_URL: `${origin}/api/payments/webhook` }, stdio: ['ignore', 'ignore', 'inherit']
+	});
+	stops.push(() => paymentFake.stop());
+	await Promise.race([
+		waitForHttp(`${paymentEnv.PAYMENT_FAKE_URL}/__health`),
+		new Promise((_, reject) => paymentFake.child.once('exit', (code) => reject(new Error(`the payment fake could not start (exit ${code})`))))
+	]);
+
+	const appEnv = { ...process.env, ...mailEnv, ...paymentEnv, DATABASE_URL: url, PORT: String(port), HOST: '127.0.0.1', ORIGIN: origin, BODY_SIZE_LIMIT: '26M' };
 	const app = startChild('app', process.execPath, [path.join(buildDir, 'index.js')], {
 		env: appEnv, stdio: ['ignore', 'ignore', 'inherit']
 	});
@@ -47,6 +87,8 @@ try {
 		...process.env,
 		DATABASE_URL: url,
 		MENDWISE_TEST_URL: origin,
+		...mailEnv,
+		...paymentEnv,
 		...(superUrl ? { SUPER_DATABASE_URL: superUrl } : {}),
 		...(cluster ? { PG_TEST_CLUSTER: path.join(dataDir, 'pg-test.json') } : {})
 	};

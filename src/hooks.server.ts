@@ -2,10 +2,19 @@ import { randomUUID } from 'node:crypto';
 import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { lucia } from '$lib/server/auth/lucia';
-import { db } from '$lib/server/db';
+import { closeDb, db } from '$lib/server/db';
+import * as outbox from '$lib/server/mail/outbox';
 
 export const init: ServerInit = async () => {
 	db();
+	// Without SMTP_URL this only warns: e-mail then waits in the outbox.
+	const stopMail = outbox.startWorker();
+	// Emitted once every request has finished: let the sending loop end, then the pool, so the
+	// process exits at once.
+	process.once('sveltekit:shutdown', async () => {
+		await stopMail();
+		await closeDb();
+	});
 };
 
 const securityHeaders: Handle = async ({ event, resolve }) => {

@@ -37,6 +37,7 @@ export const NAV: NavItem[] = [
 	{ href: '/catalog', label: 'Catalog', roles: STAFF },
 	{ href: '/specs', label: 'Spec sheets', roles: STAFF },
 	{ href: '/settings', label: 'Settings', roles: MANAGERS },
+	{ href: '/reports', label: 'Reports', roles: MANAGERS },
 	{ href: '/team', label: 'Team', roles: MANAGERS },
 	{ href: '/account', label: 'My account', roles: STAFF }
 ];

@@ -19,6 +19,9 @@ const matrix: Record<string, Record<Who, Expect>> = {
 	'/customers': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/specs': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/specs/new': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
+	'/catalog': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/catalog/parts.csv': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/settings': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
 	'/api/health': { anonymous: 'ok', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' }
 };
 

@@ -244,12 +244,15 @@ describe('who may add and see photos', () => {
 		expect((await anonymous.get(`/jobs/${jobA}/photos/${photo.id}`)).status).toBe(401);
 		expect((await anonymous.get(`/jobs/${jobA}/photos/${photo.id}/thumb`)).status).toBe(401);
 		expect((await anonymous.get(`/jobs/${jobA}/photos`, { accept: 'application/json' })).status).toBe(401);
+		expect((await anonymous.postJson(`/jobs/${jobA}/photos/${photo.id}`, { caption: 'anonymous' })).status).toBe(401);
+		expect((await anonymous.request('DELETE', `/jobs/${jobA}/photos/${photo.id}`)).status).toBe(401);
+		expect((await Photo.findByPk(photo.id))!.caption).not.toBe('anonymous');
 	});
 
 	it('a cross-site form post is stopped before it reaches the upload', async () => {
 		const before = await countFor(jobA);
 		const form = new FormData();
-		form.append('photo', new Blob([new Uint8Array(jpegWithGps)], { type: 'image/jpeg' }), 'x.jpg');
+		form.append('photo', new Blob([new Uint8Array(gif)], { type: 'image/jpeg' }), 'x.jpg');
 		const reply = await ownerA.request('POST', `/jobs/${jobA}/photos`, { body: form, headers: { origin: 'https://attacker.example' } });
 		expect(reply.status).toBe(403);
 		expect(await countFor(jobA)).toBe(before);

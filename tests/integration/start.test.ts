@@ -53,7 +53,7 @@ afterAll(async () => {
 });
 
 describe('npm start', () => {
-	it('serves sign-in, keeps rows across a restart, and listens on loopback only', async () => {
+	it('serves sign-in, keeps rows across a restart, and listens on loopback only', { timeout: 240_000 }, async () => {
 		const port = await freePort();
 		const first = await start(port);
 		const base = `http://127.0.0.1:${port}`;

@@ -9,7 +9,7 @@ import {
 	repairVerdictMinor,
 	type Verdict
 } from './economics';
-import { issuesOf, type FieldIssue } from './fields';
+import { issuesOf, pricingErrorMap, type FieldIssue } from './fields';
 import {
 	factorString,
 	formatter,
@@ -629,7 +629,7 @@ function recommend(assessed: AssessedRepair[], replacement: PricedOption | null,
 	};
 	const worth = cheapest('repair');
 	if (worth) {
-		return { verdict: 'repair', optionIndex: worth.optionIndex, reasons: [`Repair: "${worth.label}" is the better buy than "${replacement.option.label}".`] };
+		return { verdict: 'repair', optionIndex: worth.optionIndex, reasons: [`Repair: "${worth.label}" is a better buy than "${replacement.option.label}".`] };
 	}
 	const close = cheapest('close-call');
 	if (close) {
@@ -642,7 +642,7 @@ function recommend(assessed: AssessedRepair[], replacement: PricedOption | null,
 	return {
 		verdict: 'replace',
 		optionIndex: replacement.index,
-		reasons: [`Replace: "${replacement.option.label}" is the better buy than any repair offered.`]
+		reasons: [`Replace: "${replacement.option.label}" is a better buy than any repair offered.`]
 	};
 }
 
@@ -658,13 +658,13 @@ export function evaluateRequest(body: unknown, shopOverrides?: unknown): Evaluat
 	try {
 		let shop: PricingSettingsOverrides | undefined;
 		if (shopOverrides !== undefined && shopOverrides !== null) {
-			const parsedShop = pricingSettingsOverridesSchema.safeParse(shopOverrides);
+			const parsedShop = pricingSettingsOverridesSchema.safeParse(shopOverrides, { error: pricingErrorMap });
 			if (!parsedShop.success) {
 				return failure("The shop's saved pricing settings are not valid; fix them on the settings page.", issuesOf(parsedShop.error, 'shopSettings'));
 			}
 			shop = parsedShop.data;
 		}
-		const parsed = pricingRequestSchema.safeParse(body);
+		const parsed = pricingRequestSchema.safeParse(body, { error: pricingErrorMap });
 		if (!parsed.success) {
 			const issues = issuesOf(parsed.error);
 			return failure(describeIssues(issues), issues);
@@ -683,7 +683,8 @@ export function evaluateRequest(body: unknown, shopOverrides?: unknown): Evaluat
 		if (error instanceof PricingError) {
 			return failure(error.message, [{ path: error.path, message: error.message }]);
 		}
-		return failure('The pricing request could not be evaluated; check the figures and try again.', []);
+		const message = 'The pricing request could not be evaluated; check the figures and try again.';
+		return failure(message, [{ path: '', message }]);
 	}
 }
 

@@ -98,6 +98,35 @@ export const currencyField = z
 export const textField = (max: number, what: string) =>
 	z.string({ error: `Enter ${what} as text.` }).trim().max(max, { error: `Keep ${what} to ${max} characters or fewer.` });
 
+const TYPE_WORDS: Record<string, string> = {
+	object: 'a JSON object',
+	array: 'a list',
+	string: 'text',
+	number: 'a number',
+	boolean: 'true or false'
+};
+
+/**
+ * Plain messages for zod's built-in issues, passed per parse (`safeParse(x, { error: pricingErrorMap })`)
+ * so messages set on a field still win. Never echoes the input back.
+ */
+export function pricingErrorMap(issue: z.core.$ZodRawIssue): string | undefined {
+	switch (issue.code) {
+		case 'invalid_type':
+			return `Expected ${TYPE_WORDS[issue.expected] ?? issue.expected} here.`;
+		case 'unrecognized_keys': {
+			const keys = issue.keys.slice(0, 5).map((key) => `"${key.slice(0, 40)}"`).join(', ');
+			return `Unknown field${issue.keys.length > 1 ? 's' : ''} ${keys}: check the spelling or leave ${issue.keys.length > 1 ? 'them' : 'it'} out.`;
+		}
+		case 'invalid_value':
+			return `Choose one of: ${issue.values.map((value) => JSON.stringify(value)).join(', ')}.`;
+		case 'invalid_union':
+			return 'This value is not in any of the accepted forms.';
+		default:
+			return undefined;
+	}
+}
+
 export interface FieldIssue {
 	path: string;
 	message: string;

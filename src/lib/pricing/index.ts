@@ -7,7 +7,7 @@ export * from './economics';
 export * from './staged';
 export * from './bench';
 export * from './format';
-export { issuesOf, decimalField, type FieldIssue } from './fields';
+export { issuesOf, decimalField, pricingErrorMap, type FieldIssue } from './fields';
 export {
 	evaluate,
 	evaluateRequest,

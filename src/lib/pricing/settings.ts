@@ -175,5 +175,27 @@ function dropUndefined<T extends object>(value: T | undefined): Partial<T> {
 
 /** Plain JSON form of settings (Decimal → string), for storage, pages and results. */
 export function settingsToJson(settings: PricingSettings): PricingSettingsJson {
-	return JSON.parse(JSON.stringify(settings)) as PricingSettingsJson;
+	const text = (value: Decimal) => value.toString();
+	const c = settings.conditionFactors;
+	return {
+		currency: settings.currency,
+		roundingMode: settings.roundingMode,
+		labourRate: text(settings.labourRate),
+		labourCostRate: text(settings.labourCostRate),
+		markupTiers: settings.markupTiers.map((tier) => ({ upTo: tier.upTo === null ? null : text(tier.upTo), multiplier: text(tier.multiplier) })),
+		suppliesPercent: text(settings.suppliesPercent),
+		suppliesCap: text(settings.suppliesCap),
+		taxRate: text(settings.taxRate),
+		taxable: { ...settings.taxable },
+		depositPercent: text(settings.depositPercent),
+		depositRule: settings.depositRule,
+		discountRate: text(settings.discountRate),
+		annualHours: text(settings.annualHours),
+		salvageFloorPercent: text(settings.salvageFloorPercent),
+		conditionFactors: { excellent: text(c.excellent), good: text(c.good), fair: text(c.fair), poor: text(c.poor) },
+		repairThresholdPercent: text(settings.repairThresholdPercent),
+		closeCallBand: text(settings.closeCallBand),
+		minimumLifeAfterRepair: text(settings.minimumLifeAfterRepair),
+		targetMarginPercent: text(settings.targetMarginPercent)
+	};
 }

@@ -4,6 +4,7 @@ import { db } from './db';
 import { Customer, Shop, SpecSheet, Unit, User, type Role } from './db/models';
 import * as jobs from './jobs';
 import * as readings from './readings';
+import { seedDemoCatalog } from './demo-catalog';
 import { seedStarterSheets } from './specs';
 
 // The demo scenario: an invented shop in an invented town. Every name here is made up.
@@ -55,6 +56,7 @@ export async function seedDemo(): Promise<DemoSignIn[] | null> {
 			{ transaction, returning: true }
 		);
 		await seedStarterSheets(shop.id, transaction);
+		await seedDemoCatalog(shop.id, transaction);
 		return { shop, staff, customers };
 	});
 	await seedDemoJobs(shop.id, staff, customers);

@@ -1,13 +1,15 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { Op } from 'sequelize';
 import { z } from 'zod';
-import { ROLE_NAMES, capitalise, manageableRoles, roleWithArticle, type RoleName } from '../roles';
+import { ROLE_LABELS, ROLE_NAMES, capitalise, manageableRoles, roleWithArticle, type RoleName } from '../roles';
 import * as audit from './audit';
 import { lucia } from './auth/lucia';
 import { hashPassword } from './auth/password';
 import { db } from './db';
 import { Invite, Shop, User } from './db/models';
 import { UserError } from './errors';
+import * as outbox from './mail/outbox';
+import * as templates from './mail/templates';
 import { emailField, emailTaken, nameField, newPasswordField } from './users';
 
 export const INVITE_DAYS = 7;
@@ -25,24 +27,48 @@ interface Actor {
 	id: string;
 	shopId: string;
 	role: RoleName;
+	name?: string;
 }
 
-/** Creates a single-use invite and returns the token for the link (only its hash is kept). */
-export async function create(actor: Actor, input: z.infer<typeof inviteSchema>) {
+export const inviteLink = (origin: string, token: string) => `${origin}/invite/${token}`;
+
+/**
+ * Creates a single-use invite and queues the e-mail carrying its link, both or neither. Returns the
+ * token for the link (only its hash is kept); `origin` is the app's public address.
+ */
+export async function create(actor: Actor, input: z.infer<typeof inviteSchema>, origin: string) {
 	if (!manageableRoles(actor.role).includes(input.role)) {
 		throw new UserError(`${capitalise(roleWithArticle(actor.role))} cannot invite ${roleWithArticle(input.role)}.`, 'role');
 	}
 	if (await emailTaken(input.email)) throw new UserError('Someone with this e-mail already has an account.', 'email');
+	const shop = await Shop.findByPk(actor.shopId, { attributes: ['name', 'phone', 'email', 'address'], rejectOnEmpty: true });
 	const token = randomBytes(32).toString('base64url');
-	const invite = await Invite.create({
-		shopId: actor.shopId,
-		email: input.email,
-		role: input.role,
-		tokenHash: hashToken(token),
-		invitedBy: actor.id,
-		expiresAt: new Date(Date.now() + INVITE_DAYS * 86_400_000)
+	const invite = await db().transaction(async (transaction) => {
+		const created = await Invite.create(
+			{
+				shopId: actor.shopId,
+				email: input.email,
+				role: input.role,
+				tokenHash: hashToken(token),
+				invitedBy: actor.id,
+				expiresAt: new Date(Date.now() + INVITE_DAYS * 86_400_000)
+			},
+			{ transaction }
+		);
+		const mail = templates.staffInvite({
+			shop,
+			inviterName: actor.name?.trim() || `The ${ROLE_LABELS[actor.role].toLowerCase()} of ${shop.name}`,
+			roleLabel: ROLE_LABELS[input.role],
+			link: inviteLink(origin, token),
+			validDays: INVITE_DAYS
+		});
+		await outbox.enqueue({ to: input.email, ...mail }, { shopId: actor.shopId, kind: 'staff_invite' }, transaction);
+		await audit.record(
+			{ shopId: actor.shopId, userId: actor.id, action: 'invite.created', entity: 'invite', entityId: created.id, detail: { role: input.role } },
+			transaction
+		);
+		return created;
 	});
-	await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'invite.created', entity: 'invite', entityId: invite.id, detail: { role: input.role } });
 	return { invite, token };
 }
 

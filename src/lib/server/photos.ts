@@ -104,35 +104,28 @@ export async function jobExists(shopId: string, jobId: string): Promise<boolean>
 }
 
 async function jobOf(shopId: string, jobId: string) {
-	const job = isUuid(jobId) ? await Job.findOne({ where: { id: jobId, shopId }, attributes: ['id', 'number'] }) : null;
+	const job = isUuid(jobId) ? await Job.findOne({ where: { id: jobId, shopId }, attributes: ['id'] }) : null;
 	if (!job) throw notFound();
 	return job;
 }
 
-/** Decides from the bytes themselves, never from the name or the declared type. */
-async function checkPicture(bytes: Buffer): Promise<void> {
+const HEIC_MESSAGE =
+	'This is a HEIC photo, which the shop cannot read. Set the phone camera to "Most compatible" (JPEG) and take it again, or send it as JPEG.';
+
+/** Decides from the bytes themselves, never from the name or the declared type; true for HEIC/HEIF. */
+async function checkPicture(bytes: Buffer): Promise<boolean> {
 	if (bytes.length === 0) throw new PhotoError('The file is empty (0 bytes). Choose the photo again.');
 	if (bytes.length > MAX_BYTES) {
 		throw new PhotoError(`This file is ${megabytes(bytes.length)}; a photo can be at most ${megabytes(MAX_BYTES)}. Send a smaller photo.`);
 	}
 	const type = await fileTypeFromBuffer(bytes);
-	if (type && HEIF.has(type.mime)) {
-		// Phones save HEIC by default; decoding it depends on how the image library was built.
-		const readable = await sharp(bytes, { limitInputPixels: MAX_PIXELS })
-			.metadata()
-			.then((m) => Boolean(m.width && m.height))
-			.catch(() => false);
-		if (!readable) {
-			throw new PhotoError(
-				'This is a HEIC photo, which the shop cannot read yet. Set the phone camera to "Most compatible" (JPEG) and take it again, or send it as JPEG.'
-			);
-		}
-		return;
-	}
+	// Phones save HEIC by default; whether it decodes depends on how the image library was built.
+	if (type && HEIF.has(type.mime)) return true;
 	if (!type || !ACCEPTED.has(type.mime)) {
 		const found = type ? ` (this file is ${type.ext.toUpperCase()})` : '';
 		throw new PhotoError(`Only JPEG, PNG or WebP photos can be added${found}. Choose a picture taken with a camera or phone.`);
 	}
+	return false;
 }
 
 interface Encoded {
@@ -143,15 +136,17 @@ interface Encoded {
 }
 
 /** Upright by EXIF, then re-encoded: the output carries no metadata (no GPS, no camera serial). */
-async function encode(bytes: Buffer): Promise<Encoded> {
+async function encode(bytes: Buffer, heif: boolean): Promise<Encoded> {
+	const unreadable = heif ? HEIC_MESSAGE : 'The picture cannot be read; it may be damaged or cut short. Try sending it again.';
 	const source = () => sharp(bytes, { limitInputPixels: MAX_PIXELS, failOn: 'error' });
 	let meta: Metadata;
 	try {
-		meta = await source().metadata();
+		// Only the header is read here, so the pixel count can be judged with a clear message.
+		meta = await sharp(bytes, { limitInputPixels: false }).metadata();
 	} catch {
-		throw new PhotoError('The picture cannot be read; it may be damaged or cut short. Try sending it again.');
+		throw new PhotoError(unreadable);
 	}
-	if (!meta.width || !meta.height) throw new PhotoError('The picture cannot be read; it has no size.');
+	if (!meta.width || !meta.height) throw new PhotoError(unreadable);
 	if (meta.width * meta.height > MAX_PIXELS) {
 		throw new PhotoError(`The picture is ${meta.width} × ${meta.height} pixels, more than ${MAX_PIXELS / 1_000_000} megapixels. Take it at the camera's normal size.`);
 	}
@@ -168,7 +163,7 @@ async function encode(bytes: Buffer): Promise<Encoded> {
 			.toBuffer();
 		return { full: full.data, thumb, width: full.info.width, height: full.info.height };
 	} catch {
-		throw new PhotoError('The picture cannot be read; it may be damaged or cut short. Try sending it again.');
+		throw new PhotoError(unreadable);
 	}
 }
 
@@ -198,8 +193,8 @@ export async function add(actor: Actor, jobId: string, file: { bytes: Buffer; na
 	const job = await jobOf(actor.shopId, jobId);
 	const parsedCaption = captionField.safeParse(caption);
 	if (!parsedCaption.success) throw new PhotoError(parsedCaption.error.issues[0].message);
-	await checkPicture(file.bytes);
-	const encoded = await encode(file.bytes);
+	const heif = await checkPicture(file.bytes);
+	const encoded = await encode(file.bytes, heif);
 	const photo = await db().transaction(async (transaction) => {
 		const created = await Photo.create(
 			{

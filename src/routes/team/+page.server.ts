@@ -5,6 +5,7 @@ import { MANAGERS, manageableRoles } from '$lib/roles';
 import { requireRole } from '$lib/server/auth/guard';
 import { echo, parseForm, type FieldErrors } from '$lib/server/forms';
 import * as invites from '$lib/server/invites';
+import * as outbox from '$lib/server/mail/outbox';
 import * as users from '$lib/server/users';
 
 const idSchema = z.object({ id: z.uuid({ error: 'Pick someone from the list.' }) });
@@ -27,8 +28,13 @@ export const actions: Actions = {
 		const parsed = parseForm(invites.inviteSchema, form);
 		if (!parsed.ok) return fail(400, { action: 'invite', message: parsed.message, errors: parsed.errors, ...echo(form) });
 		try {
-			const { token } = await invites.create(user, parsed.data);
-			return { action: 'invite', inviteLink: `${url.origin}/invite/${token}`, invitedEmail: parsed.data.email };
+			const { token } = await invites.create(user, parsed.data, url.origin);
+			return {
+				action: 'invite',
+				inviteLink: invites.inviteLink(url.origin, token),
+				invitedEmail: parsed.data.email,
+				mailConfigured: outbox.mailConfigured()
+			};
 		} catch (e) {
 			if (e instanceof users.UserError) return fail(400, { action: 'invite', message: e.message, errors: (e.field ? { [e.field]: e.message } : {}) as FieldErrors, ...echo(form) });
 			throw e;

@@ -68,10 +68,16 @@ function ok(response: EvaluateResponse): PricingResult {
 
 const NUMBER_TEXT = /^-?\d+(\.\d+)?$/;
 
-/** Every string that looks numeric is a plain decimal, and nothing anywhere says NaN or Infinity. */
-function expectClean(value: unknown) {
-	const text = JSON.stringify(value);
-	expect(text).not.toMatch(/NaN|Infinity/);
+/** Text the caller typed (labels, descriptions) is echoed as given; every other string is checked. */
+const CALLER_TEXT = new Set(['description', 'label', 'id', 'reasons']);
+
+/** No figure anywhere in a result is NaN or Infinity, and every number is finite. */
+function expectClean(value: unknown, key = ''): void {
+	if (CALLER_TEXT.has(key)) return;
+	if (typeof value === 'string') expect(value).not.toMatch(/NaN|Infinity/);
+	else if (typeof value === 'number') expect(Number.isFinite(value)).toBe(true);
+	else if (Array.isArray(value)) value.forEach((item) => expectClean(item));
+	else if (value && typeof value === 'object') for (const [k, v] of Object.entries(value)) expectClean(v, k);
 }
 
 describe('evaluateRequest on the documented example', () => {
@@ -303,13 +309,24 @@ describe('evaluateRequest refuses malformed input with issues', () => {
 });
 
 describe('fuzzing evaluateRequest', () => {
+	// A refusal may quote the caller's own field names back (even one named "NaN"), so the figures
+	// are checked on results and the shape is checked on refusals.
 	const check = (body: unknown, shop?: unknown) => {
 		let response: EvaluateResponse | undefined;
 		expect(() => {
 			response = evaluateRequest(body, shop);
 		}).not.toThrow();
-		expectClean(response);
-		if (response && !response.ok) expect(Array.isArray(response.issues)).toBe(true);
+		if (!response) throw new Error('no response');
+		if (response.ok) {
+			expectClean(response.result);
+		} else {
+			expect(typeof response.message).toBe('string');
+			expect(response.issues.length).toBeGreaterThan(0);
+			for (const issue of response.issues) {
+				expect(typeof issue.path).toBe('string');
+				expect(issue.message).not.toMatch(/\[object Object\]|received (NaN|-?Infinity)/);
+			}
+		}
 	};
 
 	it('never throws and never yields NaN or Infinity for anything at all', () => {
@@ -380,8 +397,8 @@ describe('fuzzing evaluateRequest', () => {
 		fc.assert(
 			fc.property(body, (b) => {
 				const response = evaluateRequest(b);
-				expectClean(response);
 				if (response.ok) {
+					expectClean(response.result);
 					for (const option of response.result.options) expect(option.total).toMatch(NUMBER_TEXT);
 					for (const repair of response.result.repairs) {
 						if (repair.comparison) expect(repair.comparison.breakEvenRepair).toMatch(NUMBER_TEXT);

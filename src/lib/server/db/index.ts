@@ -1,6 +1,9 @@
 import pg from 'pg';
 import { Sequelize } from 'sequelize';
 import { initModels } from './models';
+import { initOutboxModel } from './outbox-model';
+import { initPaymentModels } from './payment-models';
+import { initReportModels } from './report-models';
 
 // NUMERIC arrives as a string and stays one until it is wrapped in Decimal; BIGINT counts
 // (COUNT(*)) are safe as numbers at the sizes a shop reaches.
@@ -31,6 +34,9 @@ export function db(): Sequelize {
 			define: { underscored: true, timestamps: true }
 		});
 		initModels(instance);
+		initOutboxModel(instance);
+		initPaymentModels(instance);
+		initReportModels(instance);
 	}
 	return instance;
 }

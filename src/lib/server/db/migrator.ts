@@ -4,6 +4,10 @@ import { db } from './index';
 import * as foundation from './migrations/20261202-0001-foundation';
 import * as customers from './migrations/20261202-0002-customers';
 import * as shopData from './migrations/20261202-0003-shop-data';
+import * as outbox from './migrations/20261202-0004-outbox';
+import * as quotes from './migrations/20261202-0005-quotes';
+import * as payments from './migrations/20261202-0006-payments';
+import * as reports from './migrations/20261202-0007-reports';
 
 export type Migration = MigrationFn<Sequelize>;
 
@@ -11,7 +15,11 @@ export type Migration = MigrationFn<Sequelize>;
 const migrations: { name: string; module: { up: Migration; down: Migration } }[] = [
 	{ name: '20261202-0001-foundation', module: foundation },
 	{ name: '20261202-0002-customers', module: customers },
-	{ name: '20261202-0003-shop-data', module: shopData }
+	{ name: '20261202-0003-shop-data', module: shopData },
+	{ name: '20261202-0004-outbox', module: outbox },
+	{ name: '20261202-0005-quotes', module: quotes },
+	{ name: '20261202-0006-payments', module: payments },
+	{ name: '20261202-0007-reports', module: reports }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {

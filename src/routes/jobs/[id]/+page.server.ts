@@ -4,6 +4,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { BENCH, FRONT_DESK, MANAGERS, STAFF } from '$lib/roles';
 import { attempt } from '$lib/server/actions';
 import { requireRole } from '$lib/server/auth/guard';
+import { Quote, QuoteVersion } from '$lib/server/db/models';
 import { echo, parseForm } from '$lib/server/forms';
 import * as jobs from '$lib/server/jobs';
 import * as photos from '$lib/server/photos';
@@ -29,6 +30,8 @@ export const load: PageServerLoad = async ({ params }) => {
 		jobs.technicians(user.shopId),
 		photos.list(user.shopId, job.id)
 	]);
+	const quote = await Quote.findOne({ where: { shopId: user.shopId, jobId: job.id }, attributes: ['id', 'editedSinceSend'] });
+	const sent = quote ? await QuoteVersion.findAll({ where: { shopId: user.shopId, quoteId: quote.id }, attributes: ['number', 'sentAt', 'validUntil'], order: [['number', 'DESC']] }) : [];
 	return {
 		role: user.role,
 		canAssign: FRONT_DESK.includes(user.role),
@@ -57,6 +60,7 @@ export const load: PageServerLoad = async ({ params }) => {
 			at: r.createdAt.toISOString()
 		})),
 		photos: pictures,
+		estimate: { started: !!quote, versions: sent.map((v) => ({ number: v.number, sentAt: v.sentAt.toISOString(), validUntil: v.validUntil })) },
 		history: history.map((h) => ({ ...h, at: new Date(h.at).toISOString() }))
 	};
 };

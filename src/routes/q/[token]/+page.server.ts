@@ -4,6 +4,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { attempt } from '$lib/server/actions';
 import { customerView } from '$lib/server/customer-view';
 import { parseForm } from '$lib/server/forms';
+import * as payments from '$lib/server/payments';
 import * as quotes from '$lib/server/quotes';
 
 // Public on purpose: the token in the address is the customer's credential. Everything shown
@@ -26,9 +27,11 @@ async function find(token: string) {
 	return found;
 }
 
-export const load: PageServerLoad = async ({ params, setHeaders }) => {
+export const load: PageServerLoad = async ({ params, setHeaders, url }) => {
 	setHeaders({ 'cache-control': 'private, no-store', 'x-robots-tag': 'noindex' });
-	return customerView(await find(params.token));
+	const found = await find(params.token);
+	const [view, payment] = await Promise.all([customerView(found), payments.customerState(found, url.searchParams)]);
+	return { ...view, payment };
 };
 
 export const actions: Actions = {
@@ -69,5 +72,12 @@ export const actions: Actions = {
 		);
 		if (!result.ok) return result.failure;
 		redirect(303, `/q/${params.token}`);
+	},
+	// The payment page is on the payment service's site; the page navigates there (the CSP's
+	// form-action keeps form posts themselves on this site).
+	pay: async ({ params, url }) => {
+		const result = await attempt(() => payments.startCheckout(params.token, url.origin), { action: 'pay' });
+		if (!result.ok) return result.failure;
+		return { action: 'pay', checkoutUrl: result.value };
 	}
 };

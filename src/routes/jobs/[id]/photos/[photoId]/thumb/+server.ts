@@ -1,8 +1,7 @@
 // A photo's thumbnail (WebP, at most 320 px on the long side) for galleries.
 import type { RequestHandler } from './$types';
 import * as photos from '$lib/server/photos';
-import { requireStaff } from '../../access';
-import { pictureResponse } from '../../serve';
+import { pictureResponse, requireStaff } from '../../http';
 
 export const GET: RequestHandler = async ({ params }) => {
 	const user = requireStaff();

@@ -1,0 +1,334 @@
+// The quote builder on a job: the live verdict is the engine's, saves are locked against each
+// other, sent versions never change, costs stay with the roles allowed to see them, and every
+// route answers only for the caller's own shop.
+import { createHash } from 'node:crypto';
+import * as devalue from 'devalue';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { carriesCosts } from '../../src/lib/components/quote/costs';
+import { evaluateRequest } from '../../src/lib/pricing/evaluate';
+import { Job, Part, Quote, QuoteLink, QuoteVersion, Shop } from '../../src/lib/server/db/models';
+import * as settings from '../../src/lib/server/settings';
+import { Client, signedIn } from '../helpers/client';
+import { createShop, type ShopFixture } from '../helpers/fixtures';
+import { createJob } from '../helpers/shopdata';
+
+type Role = 'owner' | 'manager' | 'writer' | 'technician';
+
+let shop: ShopFixture;
+let other: ShopFixture;
+const as = {} as Record<Role, Client>;
+let outsider: Client;
+
+beforeAll(async () => {
+	[shop, other] = await Promise.all([createShop('Quote builder'), createShop('Quote builder other')]);
+	for (const role of ['owner', 'manager', 'writer', 'technician'] as const) as[role] = await signedIn(shop.staff[role].email, shop.staff[role].password);
+	outsider = await signedIn(other.staff.owner.email, other.staff.owner.password);
+});
+
+/** A form action called as the page calls it (fetch with x-sveltekit-action); data decoded with devalue. */
+async function action(client: Client, path: string, fields: Record<string, string> = {}) {
+	const reply = await client.request('POST', path, {
+		body: new URLSearchParams(fields).toString(),
+		headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json', 'x-sveltekit-action': 'true', origin: client.base }
+	});
+	const body = reply.status === 200 || reply.headers.get('content-type')?.includes('json') ? reply.json() : {};
+	return {
+		status: reply.status,
+		type: body.type as 'success' | 'failure' | 'redirect' | 'error' | undefined,
+		actionStatus: body.status as number | undefined,
+		data: (typeof body.data === 'string' ? devalue.parse(body.data) : body.data) as Record<string, any>,
+		error: body.error as { message: string } | undefined
+	};
+}
+
+/** The page's load data, as the browser receives it (__data.json, devalue-encoded). */
+async function pageData(client: Client, jobId: string) {
+	const reply = await client.get(`/jobs/${jobId}/quote/__data.json`);
+	expect(reply.status).toBe(200);
+	const nodes = reply.json().nodes as { type: string; data: unknown[] }[];
+	const node = nodes[nodes.length - 1];
+	return { raw: reply.text, data: devalue.unflatten(node.data) as Record<string, any> };
+}
+
+/** The alternator-head example of docs/api.md, as a draft (the request without currency and fee). */
+function alternatorDraft(partCost = '148.00') {
+	return {
+		unit: { description: 'Harrowgate PG-5500 portable generator', ageYears: '4', engineHours: '380', lifeYears: '10', lifeHours: '1500', condition: 'good', asIsValue: '60.00' },
+		options: [
+			{
+				id: 'repair-head',
+				label: 'Rebuild the alternator head',
+				kind: 'repair',
+				creditDiagnosticFee: true,
+				lines: [
+					{ kind: 'part', id: 'stator', description: 'Stator, 5.5 kW', quantity: '1', unitCost: partCost, specialOrder: true },
+					{ kind: 'part', id: 'brushes', description: 'Brush set', quantity: '1', unitCost: '16.40' },
+					{ kind: 'part', id: 'avr', description: 'Voltage regulator', quantity: '1', unitCost: '38.00' },
+					{ kind: 'labour', id: 'fit', description: 'Strip the alternator head, fit stator, brushes and regulator, test under load', hours: '2.8' }
+				]
+			},
+			{
+				id: 'replace',
+				label: 'New Harrowgate PG-5500',
+				kind: 'replacement',
+				lines: [
+					{ kind: 'unit', id: 'new-unit', description: 'Harrowgate PG-5500, new', cost: '715.00', price: '949.00' },
+					{ kind: 'fee', id: 'disposal', description: 'Disposal of the old unit', amount: '20.00', feeType: 'disposal' },
+					{ kind: 'fee', id: 'setup', description: 'Set-up and first start', amount: '30.00', feeType: 'setup' }
+				]
+			},
+			{ id: 'decline', label: 'Return unrepaired', kind: 'decline', lines: [{ kind: 'fee', id: 'diag', description: 'Diagnosis', amount: '89.00', feeType: 'diagnostic' }] }
+		]
+	};
+}
+
+async function setShopSettings(shopId: string, extra: Record<string, unknown>) {
+	const row = (await Shop.findByPk(shopId))!;
+	row.set({ settings: { ...(row.settings as object), ...extra } });
+	row.changed('settings', true);
+	await row.save();
+}
+
+async function lockOf(jobId: string) {
+	return (await Quote.findOne({ where: { jobId } }))!.lockVersion;
+}
+
+describe('the live verdict is the engine’s', () => {
+	it('POST /api/pricing/evaluate and the page data equal evaluateRequest of the same body', async () => {
+		// The shop's 7% tax makes this the worked example of docs/api.md.
+		await setShopSettings(shop.id, { pricing: { taxRate: '0.07' } });
+		const { job } = await createJob(shop);
+		await pageData(as.technician, job.id);
+		const draft = alternatorDraft();
+		const saved = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		expect(saved.type).toBe('success');
+
+		const body = { currency: 'USD', diagnosticFee: '89.00', ...draft };
+		const direct = evaluateRequest(body, await settings.pricingOverrides(shop.id));
+		expect(direct.ok).toBe(true);
+		if (!direct.ok) return;
+		// Figures of the worked example in docs/api.md: total 584.78, break-even 674.02, verdict repair.
+		expect(direct.result.options[0].total).toBe('584.78');
+		expect(direct.result.repairs[0].comparison?.breakEvenRepair).toBe('674.02');
+		expect(direct.result.recommendation.verdict).toBe('repair');
+
+		const live = await as.technician.postJson('/api/pricing/evaluate', body);
+		expect(live.status).toBe(200);
+		expect(live.json()).toEqual(JSON.parse(JSON.stringify(direct.result)));
+
+		const { data } = await pageData(as.technician, job.id);
+		expect(data.initial.result).toEqual(JSON.parse(JSON.stringify(direct.result)));
+		expect(data.quote.draft).toEqual(draft);
+		await setShopSettings(shop.id, { pricing: {} });
+	});
+
+	it('a bad figure comes back as a 400 with the path of the field', async () => {
+		const draft = alternatorDraft();
+		(draft.options[0].lines[0] as Record<string, unknown>).unitCost = '12,50';
+		const reply = await as.technician.postJson('/api/pricing/evaluate', { currency: 'USD', diagnosticFee: '89.00', ...draft });
+		expect(reply.status).toBe(400);
+		expect(reply.json().issues.map((i: { path: string }) => i.path)).toContain('options.0.lines.0.unitCost');
+	});
+});
+
+describe('saving with a lock version', () => {
+	it('the second of two saves from the same starting point gets a conflict, and the first save is kept', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		const start = await lockOf(job.id);
+		const first = alternatorDraft('150.00');
+		const second = alternatorDraft('170.00');
+		const a = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(first), lockVersion: String(start) });
+		expect(a.type).toBe('success');
+		expect(a.data.lockVersion).toBe(start + 1);
+		const b = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(second), lockVersion: String(start) });
+		expect(b.type).toBe('failure');
+		expect(b.actionStatus).toBe(409);
+		expect(b.data.conflict).toBe(true);
+		expect(b.data.message).toContain('Someone else saved this quote');
+		const stored = (await Quote.findOne({ where: { jobId: job.id } }))!;
+		expect(stored.lockVersion).toBe(start + 1);
+		expect((stored.draft as any).options[0].lines[0].unitCost).toBe('150.00');
+	});
+
+	it('a draft the engine refuses is not saved; the issues name the fields', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		const start = await lockOf(job.id);
+		const draft = alternatorDraft();
+		(draft.options[0].lines[1] as Record<string, unknown>).quantity = '-1';
+		const reply = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(start) });
+		expect(reply.actionStatus).toBe(400);
+		expect(reply.data.message).toMatch(/^Nothing was saved\./);
+		expect(reply.data.issues.map((i: { path: string }) => i.path)).toContain('options.0.lines.1.quantity');
+		const notJson = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: '{"unit":', lockVersion: String(start) });
+		expect(notJson.actionStatus).toBe(400);
+		expect(await lockOf(job.id)).toBe(start);
+	});
+});
+
+describe('versions', () => {
+	it('sending freezes a version; the database refuses to change it; a later edit sends version 2 with another hash', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.technician, job.id);
+		const draft = alternatorDraft();
+		await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+
+		const sent = await action(as.technician, `/jobs/${job.id}/quote?/send`);
+		expect(sent.type).toBe('success');
+		expect(sent.data.version).toBe(1);
+		const token = String(sent.data.link).split('/q/')[1];
+		expect(sent.data.link).toBe(`${as.technician.base}/q/${token}`);
+		const link = await QuoteLink.findOne({ where: { tokenHash: createHash('sha256').update(token).digest('hex') } });
+		expect(link).not.toBeNull();
+		expect((await Job.findByPk(job.id))!.status).toBe('quoted');
+
+		const v1 = (await QuoteVersion.findOne({ where: { quoteId: link!.quoteId, number: 1 } }))!;
+		const frozen = { hash: v1.contentHash, content: JSON.stringify(v1.content) };
+		await expect(QuoteVersion.update({ contentHash: '0'.repeat(64) }, { where: { id: v1.id } })).rejects.toThrow(/cannot be changed/);
+		v1.set({ content: { ...v1.content, currency: 'EUR' } });
+		await expect(v1.save()).rejects.toThrow(/cannot be changed/);
+
+		// Sending again without an edit gives the same version a new link.
+		const again = await action(as.writer, `/jobs/${job.id}/quote?/send`);
+		expect(again.data.version).toBe(1);
+
+		draft.options[0].lines[1] = { ...draft.options[0].lines[1], quantity: '2' };
+		const edited = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		expect(edited.type).toBe('success');
+		const second = await action(as.technician, `/jobs/${job.id}/quote?/send`);
+		expect(second.data.version).toBe(2);
+		const v2 = (await QuoteVersion.findOne({ where: { quoteId: link!.quoteId, number: 2 } }))!;
+		expect(v2.contentHash).not.toBe(frozen.hash);
+		const v1After = (await QuoteVersion.findByPk(v1.id))!;
+		expect(v1After.contentHash).toBe(frozen.hash);
+		expect(JSON.stringify(v1After.content)).toBe(frozen.content);
+
+		const { data } = await pageData(as.writer, job.id);
+		expect(data.versions.map((v: { number: number }) => v.number)).toEqual([2, 1]);
+		expect(data.openLinks).toBe(3);
+	});
+
+	it('the desk withdraws the customer links; a technician may not', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+		await action(as.writer, `/jobs/${job.id}/quote?/send`);
+		const refused = await action(as.technician, `/jobs/${job.id}/quote?/revoke`);
+		expect(refused.status).toBe(403);
+		const quote = (await Quote.findOne({ where: { jobId: job.id } }))!;
+		expect(await QuoteLink.count({ where: { quoteId: quote.id, revokedAt: null } })).toBe(1);
+		const done = await action(as.writer, `/jobs/${job.id}/quote?/revoke`);
+		expect(done.type).toBe('success');
+		expect(done.data.revoked).toBe(1);
+		expect(await QuoteLink.count({ where: { quoteId: quote.id, revokedAt: null } })).toBe(0);
+	});
+});
+
+describe('costs and margins by role', () => {
+	it('when technicians may not see costs, neither the route nor the page gives them any; a save keeps the stored costs', async () => {
+		await setShopSettings(shop.id, { techniciansSeeCosts: false });
+		try {
+			const { job } = await createJob(shop);
+			const part = await Part.create({ shopId: shop.id, number: 'HG-AH55', description: 'Alternator head assembly, 5.5 kW', cost: '312.47', specialOrder: true });
+			// A cost no other figure on the page shares, so finding it means it leaked.
+			const draft = alternatorDraft('148.37');
+			await pageData(as.manager, job.id);
+			await action(as.manager, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+
+			const body = { currency: 'USD', diagnosticFee: '89.00', ...draft };
+			const techReply = (await as.technician.postJson('/api/pricing/evaluate', body)).json();
+			const managerReply = (await as.manager.postJson('/api/pricing/evaluate', body)).json();
+			expect(carriesCosts(techReply)).toBe(false);
+			expect(carriesCosts(managerReply)).toBe(true);
+			expect(managerReply.options[0].cost).toBe('202.77');
+			// Same prices and verdict for both.
+			expect(techReply.options.map((o: { total: string }) => o.total)).toEqual(managerReply.options.map((o: { total: string }) => o.total));
+			expect(techReply.recommendation).toEqual(managerReply.recommendation);
+
+			const tech = await pageData(as.technician, job.id);
+			expect(tech.data.seesCosts).toBe(false);
+			expect(tech.raw).not.toContain('148.37');
+			expect(tech.raw).not.toContain('312.47');
+			expect(carriesCosts(tech.data.initial.result)).toBe(false);
+			// The part is priced by its sell price each: 148.37 × 1.75 (default tier up to 200) = 259.6475 → 259.65.
+			expect(tech.data.quote.draft.options[0].lines[0]).toMatchObject({ unitCost: '0', unitPrice: '259.65' });
+			const manager = await pageData(as.manager, job.id);
+			expect(manager.raw).toContain('148.37');
+			expect(manager.data.initial.result.options[0].marginPercent).toBeTypeOf('string');
+
+			// The technician's masked copy priced live gives the same totals as the stored draft.
+			const masked = (await as.technician.postJson('/api/pricing/evaluate', { currency: 'USD', diagnosticFee: '89.00', ...tech.data.quote.draft })).json();
+			expect(masked.options.map((o: { total: string }) => o.total)).toEqual(managerReply.options.map((o: { total: string }) => o.total));
+
+			// The technician changes a quantity and adds the catalog part; the saved draft carries the real costs.
+			const edited = structuredClone(tech.data.quote.draft);
+			edited.options[0].lines[0].quantity = '2';
+			edited.options[0].lines.push({ kind: 'part', id: `part:${part.id}:x1`, description: 'Alternator head assembly, 5.5 kW', quantity: '1', unitCost: '0', unitPrice: tech.data.catalog.parts[0].price, specialOrder: true });
+			expect(tech.data.catalog.parts[0].cost).toBeUndefined();
+			const saved = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(edited), lockVersion: String(tech.data.quote.lockVersion) });
+			expect(saved.type).toBe('success');
+			const stored = (await Quote.findOne({ where: { jobId: job.id } }))!.draft as any;
+			expect(stored.options[0].lines[0]).toMatchObject({ quantity: '2', unitCost: '148.37' });
+			expect(stored.options[0].lines[0].unitPrice).toBeUndefined();
+			expect(stored.options[0].lines[4]).toMatchObject({ unitCost: '312.47' });
+			expect(stored.options[0].lines[4].unitPrice).toBeUndefined();
+			expect(stored.options[1].lines[0]).toMatchObject({ cost: '715.00', price: '949.00' });
+		} finally {
+			await setShopSettings(shop.id, { techniciansSeeCosts: true });
+		}
+	});
+
+	it('with the default setting technicians see costs', async () => {
+		const { job } = await createJob(shop);
+		const { data } = await pageData(as.technician, job.id);
+		expect(data.seesCosts).toBe(true);
+		const reply = (await as.technician.postJson('/api/pricing/evaluate', { currency: 'USD', diagnosticFee: '89.00', ...alternatorDraft() })).json();
+		expect(carriesCosts(reply)).toBe(true);
+	});
+});
+
+describe('who may reach the builder', () => {
+	it('anonymous visitors are sent to sign in; JSON answers 401', async () => {
+		const { job } = await createJob(shop);
+		const anonymous = new Client();
+		const page = await anonymous.get(`/jobs/${job.id}/quote`);
+		expect(page.status).toBe(303);
+		expect(page.location).toBe(`/signin?next=${encodeURIComponent(`/jobs/${job.id}/quote`)}`);
+		expect((await anonymous.postJson('/api/pricing/evaluate', { currency: 'USD' })).status).toBe(401);
+		const save = await action(anonymous, `/jobs/${job.id}/quote?/save`, { draft: '{}', lockVersion: '0' });
+		expect(save.type).toBe('redirect');
+		expect(await Quote.count({ where: { jobId: job.id } })).toBe(0);
+	});
+
+	it('every staff role opens the builder and saves', async () => {
+		const { job } = await createJob(shop);
+		for (const role of ['owner', 'manager', 'writer', 'technician'] as const) {
+			expect((await as[role].get(`/jobs/${job.id}/quote`)).status).toBe(200);
+			const reply = await action(as[role], `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+			expect(reply.type).toBe('success');
+		}
+		const page = await as.owner.get(`/jobs/${job.id}`);
+		expect(page.text).toContain(`/jobs/${job.id}/quote`);
+		expect(page.text).toContain('Build the estimate');
+	});
+
+	it("another shop's job is not found on the page and on every action, and nothing changes", async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+		await action(as.writer, `/jobs/${job.id}/quote?/send`);
+		const before = await Quote.findOne({ where: { jobId: job.id } });
+		expect((await outsider.get(`/jobs/${job.id}/quote`)).status).toBe(404);
+		expect((await outsider.get(`/jobs/${job.id}/quote/__data.json`)).text).not.toContain('Rebuild the alternator head');
+		for (const name of ['save', 'send', 'revoke']) {
+			const reply = await action(outsider, `/jobs/${job.id}/quote?/${name}`, { draft: JSON.stringify(alternatorDraft('1.00')), lockVersion: String(before!.lockVersion) });
+			expect(reply.status, name).toBe(404);
+		}
+		expect((await outsider.get('/jobs/not-a-uuid/quote')).status).toBe(404);
+		const after = await Quote.findOne({ where: { jobId: job.id } });
+		expect(after!.lockVersion).toBe(before!.lockVersion);
+		expect(after!.sentVersions).toBe(1);
+		expect(await QuoteLink.count({ where: { quoteId: after!.id, revokedAt: null } })).toBe(1);
+	});
+});
