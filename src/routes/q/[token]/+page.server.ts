@@ -5,6 +5,8 @@ import { attempt } from '$lib/server/actions';
 import { customerView } from '$lib/server/customer-view';
 import { parseForm } from '$lib/server/forms';
 import * as payments from '$lib/server/payments';
+import { Quote, type Approval } from '$lib/server/db/models';
+import * as quoteMail from '$lib/server/quote-mail';
 import * as quotes from '$lib/server/quotes';
 
 // Public on purpose: the token in the address is the customer's credential. Everything shown
@@ -21,6 +23,12 @@ const approveSchema = z.object({
 });
 const declineSchema = z.object({ reason: z.string().trim().max(1000, 'Keep the reason under 1,000 characters.').optional().transform((v) => v ?? '') });
 
+/** The answer is recorded; the e-mails about it are queued (and retried) by the outbox. */
+async function notify(approval: Approval, url: URL, token: string) {
+	const quote = await Quote.findByPk(approval.quoteId, { attributes: ['jobId'] });
+	await quoteMail.decisionMade(approval.shopId, approval.id, { customer: `${url.origin}/q/${token}`, job: `${url.origin}/jobs/${quote!.jobId}` });
+}
+
 async function find(token: string) {
 	const found = await quotes.byToken(token);
 	if (!found) error(404, 'This estimate link is not valid. Check the address in your e-mail.');
@@ -35,7 +43,7 @@ export const load: PageServerLoad = async ({ params, setHeaders, url }) => {
 };
 
 export const actions: Actions = {
-	approve: async ({ params, request, getClientAddress }) => {
+	approve: async ({ params, request, getClientAddress, url }) => {
 		const form = await request.formData();
 		const parsed = parseForm(approveSchema, form);
 		const echoed = { signerName: String(form.get('signerName') ?? ''), optionIndex: String(form.get('optionIndex') ?? '') };
@@ -53,9 +61,10 @@ export const actions: Actions = {
 			{ action: 'approve', ...echoed }
 		);
 		if (!result.ok) return result.failure;
+		if (result.value.created) await notify(result.value.approval, url, params.token);
 		redirect(303, `/q/${params.token}`);
 	},
-	decline: async ({ params, request, getClientAddress }) => {
+	decline: async ({ params, request, getClientAddress, url }) => {
 		const parsed = parseForm(declineSchema, await request.formData());
 		if (!parsed.ok) return fail(400, { action: 'decline', message: parsed.errors.reason });
 		const result = await attempt(
@@ -71,6 +80,7 @@ export const actions: Actions = {
 			{ action: 'decline' }
 		);
 		if (!result.ok) return result.failure;
+		if (result.value.created) await notify(result.value.approval, url, params.token);
 		redirect(303, `/q/${params.token}`);
 	},
 	// The payment page is on the payment service's site; the page navigates there (the CSP's
