@@ -48,7 +48,8 @@ try {
 	]);
 	const mailEnv = { SMTP_URL: `smtp://127.0.0.1:${smtpPort}`, MAIL_CATCHER_URL: `http://127.0.0.1:${mailApiPort}` };
 
-	const port = await freePort(Number(process.env.TEST_PORT ?? 4310));
+	// A random start keeps parallel runs from racing for the same port.
+	const port = await freePort(Number(process.env.TEST_PORT ?? 4310 + Math.floor(Math.random() * 2000)));
 	const origin = `http://127.0.0.1:${port}`;
 
 	// Card payments always go to the local payment fake, whatever Stripe keys the shell has. It

@@ -22,6 +22,7 @@ const matrix: Record<string, Record<Who, Expect>> = {
 	'/catalog': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/catalog/parts.csv': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/settings': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
+	'/dev/mailbox': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/api/health': { anonymous: 'ok', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' }
 };
 

@@ -36,7 +36,9 @@ export function afterFailure(attempts: number, error: { code?: string; responseC
 	return attempts >= MAX_ATTEMPTS ? 'give-up' : 'retry';
 }
 
-/** Failures that mean "the SMTP server is unreachable", not "this message is unwelcome". */
+/** nodemailer's codes for "the SMTP server is unreachable", as opposed to "this message is unwelcome". */
+export const CONNECTION_CODES: readonly string[] = ['ECONNECTION', 'ETIMEDOUT', 'ESOCKET', 'EDNS', 'ETLS', 'EPROXY'];
+
 export function isConnectionFailure(error: { code?: string; responseCode?: number }): boolean {
-	return ['ECONNECTION', 'ETIMEDOUT', 'ESOCKET', 'EDNS', 'ETLS', 'EPROXY'].includes(error.code ?? '') && !error.responseCode;
+	return CONNECTION_CODES.includes(error.code ?? '') && !error.responseCode;
 }

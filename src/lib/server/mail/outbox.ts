@@ -8,8 +8,9 @@ import { Op, QueryTypes, type Transaction } from 'sequelize';
 import type { Transporter } from 'nodemailer';
 import { z } from 'zod';
 import { databaseUrl, db } from '../db';
+import { Job } from '../db/models';
 import { OutboxMessage, type OutboxStatus, type StoredAttachment } from '../db/outbox-model';
-import { afterFailure, isConnectionFailure, retryDelay } from './backoff';
+import { CONNECTION_CODES, afterFailure, isConnectionFailure, retryDelay } from './backoff';
 import { closeTransport, describeSmtp, fromAddress, messageIdDomain, smtpUrl, transport } from './transport';
 
 export type { OutboxStatus } from '../db/outbox-model';
@@ -77,7 +78,6 @@ const CLAIM_SECONDS = 300;
 const IDLE_POLL_MS = 10_000;
 const PROBE_MS = 5_000;
 const MAX_ATTACHMENT_BYTES = 20 * 1024 * 1024;
-const CONNECTION_CODES = ['ECONNECTION', 'ETIMEDOUT', 'ESOCKET', 'EDNS', 'ETLS', 'EPROXY'];
 
 const addressSchema = z.email({ error: 'not a valid e-mail address' }).max(254);
 const messageSchema = z.object({
@@ -108,6 +108,9 @@ export async function enqueue(message: OutgoingMessage, context: MailContext, tr
 	const attachments = storeAttachments(message.attachments ?? []);
 	const messageId = `<${randomUUID()}@${messageIdDomain()}>`;
 	const write = async (t: Transaction) => {
+		if (context.jobId && !(await Job.count({ where: { id: context.jobId, shopId: context.shopId }, transaction: t }))) {
+			throw new Error('Cannot queue e-mail about a job of another shop');
+		}
 		const row = await OutboxMessage.create(
 			{
 				shopId: context.shopId,
@@ -297,7 +300,7 @@ export async function deliverDue(options: { mailer?: Transporter; limit?: number
 async function releaseWaiting(): Promise<number> {
 	const [count] = await OutboxMessage.update(
 		{ nextAttemptAt: new Date() },
-		{ where: { status: 'queued', nextAttemptAt: { [Op.gt]: new Date() }, lastErrorCode: { [Op.in]: CONNECTION_CODES } } }
+		{ where: { status: 'queued', nextAttemptAt: { [Op.gt]: new Date() }, lastErrorCode: { [Op.in]: [...CONNECTION_CODES] } } }
 	);
 	return count;
 }
@@ -361,6 +364,11 @@ class Worker {
 		try {
 			await client.connect();
 			await client.query(`LISTEN ${CHANNEL}`);
+			if (this.stopped) {
+				reconnecting = true;
+				await client.end();
+				return;
+			}
 			this.listener = client;
 			// Anything queued while we were not listening is picked up now.
 			this.wake();
