@@ -36,6 +36,7 @@ export const NAV: NavItem[] = [
 	{ href: '/customers', label: 'Customers', roles: STAFF },
 	{ href: '/catalog', label: 'Catalog', roles: STAFF },
 	{ href: '/specs', label: 'Spec sheets', roles: STAFF },
+	{ href: '/payments', label: 'Payments', roles: MANAGERS },
 	{ href: '/settings', label: 'Settings', roles: MANAGERS },
 	{ href: '/reports', label: 'Reports', roles: MANAGERS },
 	{ href: '/team', label: 'Team', roles: MANAGERS },

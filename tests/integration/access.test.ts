@@ -23,6 +23,8 @@ const matrix: Record<string, Record<Who, Expect>> = {
 	'/catalog/parts.csv': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/settings': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
 	'/dev/mailbox': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
+	'/payments': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
+	'/payments/payments.csv': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
 	'/api/health': { anonymous: 'ok', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' }
 };
 

@@ -67,10 +67,9 @@ export function summarise(terms: JobTerms, payments: Payment[]): Summary {
 }
 
 export async function summaryFor(shopId: string, jobId: string, transaction?: Transaction) {
-	const [terms, payments] = await Promise.all([
-		termsOf(shopId, jobId, transaction),
-		Payment.findAll({ where: { shopId, jobId }, order: [['createdAt', 'ASC']], transaction })
-	]);
+	// One after the other: queries inside a transaction share its one connection.
+	const terms = await termsOf(shopId, jobId, transaction);
+	const payments = await Payment.findAll({ where: { shopId, jobId }, order: [['createdAt', 'ASC']], transaction });
 	return { terms, payments, summary: summarise(terms, payments) };
 }
 
@@ -96,11 +95,9 @@ export function summaryJson(s: Summary) {
 export async function mailContext(shopId: string, jobId: string, transaction?: Transaction) {
 	const job = await Job.findOne({ where: { id: jobId, shopId }, transaction });
 	if (!job) return null;
-	const [customer, unit, shop] = await Promise.all([
-		Customer.findOne({ where: { id: job.customerId, shopId }, transaction }),
-		Unit.findOne({ where: { id: job.unitId, shopId }, transaction }),
-		Shop.findByPk(shopId, { attributes: ['name', 'phone', 'email', 'address'], transaction })
-	]);
+	const customer = await Customer.findOne({ where: { id: job.customerId, shopId }, transaction });
+	const unit = await Unit.findOne({ where: { id: job.unitId, shopId }, transaction });
+	const shop = await Shop.findByPk(shopId, { attributes: ['name', 'phone', 'email', 'address'], transaction });
 	return { job, customer: customer!, unit: unit!, shop: shop! };
 }
 

@@ -5,7 +5,7 @@ import { z } from 'zod';
 import { Dec } from '../../pricing/money';
 import { db } from '../db';
 import { User } from '../db/models';
-import { PAYMENT_KINDS, PAYMENT_METHODS, PAYMENT_STATUSES, Payment, PaymentEvent, Refund } from '../db/payment-models';
+import { PAYMENT_KINDS, PAYMENT_METHODS, PAYMENT_STATUSES, Payment, PaymentEvent, Refund, type PaymentStatus } from '../db/payment-models';
 import { UserError } from '../errors';
 import { isUuid } from '../validators';
 import { fixed, money, summaryFor, summaryJson } from './ledger';
@@ -198,7 +198,7 @@ export async function listForJob(shopId: string, jobId: string) {
 			id: p.id,
 			kind: p.kind,
 			method: p.method,
-			status: p.status,
+			status: p.status as PaymentStatus,
 			amount: fixed(p.amount, p.currency),
 			shown: money(p.amount, p.currency),
 			refundable: fixed(new Dec(p.amount).minus(p.refundedAmount), p.currency),

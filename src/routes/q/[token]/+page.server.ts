@@ -4,6 +4,7 @@ import type { Actions, PageServerLoad } from './$types';
 import { attempt } from '$lib/server/actions';
 import { customerView } from '$lib/server/customer-view';
 import { parseForm } from '$lib/server/forms';
+import { plainNumber } from '$lib/server/validators';
 import * as payments from '$lib/server/payments';
 import { Quote, type Approval } from '$lib/server/db/models';
 import * as quoteMail from '$lib/server/quote-mail';
@@ -13,7 +14,7 @@ import * as quotes from '$lib/server/quotes';
 // is built from that token's quote alone.
 
 const approveSchema = z.object({
-	optionIndex: z.coerce.number({ error: 'Choose the option you approve.' }).int().min(0).max(50),
+	optionIndex: z.preprocess(plainNumber, z.coerce.number({ error: 'Choose the option you approve.' }).int().min(0).max(50)),
 	signerName: z
 		.string({ error: 'Type your full name as your signature.' })
 		.trim()
