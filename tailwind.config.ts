@@ -12,7 +12,7 @@ export default {
 			},
 			colors: {
 				paper: '#f6f3ec',
-				ink: { DEFAULT: '#1f2a30', soft: '#47555d', faint: '#8a969c' },
+				ink: { DEFAULT: '#1f2a30', soft: '#47555d', faint: '#5f6b71' },
 				copper: { DEFAULT: '#a64b24', dark: '#7f3719', light: '#f3dfd2' },
 				moss: { DEFAULT: '#3d6b4f', light: '#dcebdf' },
 				amber: { DEFAULT: '#9a6a00', light: '#fbefcf' },

@@ -2,13 +2,18 @@
 // of their own, for benchmarks. Written in SQL so it takes seconds, not minutes.
 import fs from 'node:fs';
 import path from 'node:path';
-import { randomBytes } from 'node:crypto';
+import { createHash, randomBytes } from 'node:crypto';
 import { QueryTypes } from 'sequelize';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { closeDb, db } from '../src/lib/server/db/index';
 import { Shop, User } from '../src/lib/server/db/models';
 import { BOARD_COLUMNS_SQL } from '../src/lib/server/jobs';
 import { seedStarterSheets } from '../src/lib/server/specs';
+import { DEMO_LABOUR_COST_RATE, TEMPLATES, historyDraft } from '../src/lib/server/demo-history';
+import { evaluateRequest } from '../src/lib/pricing/evaluate';
+import { defaultPricingSettings, settingsToJson } from '../src/lib/pricing/settings';
+import { canonicalJson } from '../src/lib/server/quotes';
+import { UNIT_KINDS } from '../src/lib/domain';
 
 export const VOLUME_SHOP = 'Northfield Volume Repair (benchmark data)';
 const dataDir = process.env.MENDWISE_DATA_DIR ?? path.resolve(import.meta.dirname, '..', '.data');
@@ -20,6 +25,8 @@ async function main() {
 	if (existing) {
 		const [row] = await db().query<{ n: number }>('SELECT count(*)::int AS n FROM jobs WHERE shop_id = :id', { replacements: { id: existing.id }, type: QueryTypes.SELECT });
 		console.log(`[mendwise] the volume shop is already loaded (${row.n} jobs)`);
+		await seedVolumeQuotes(existing.id);
+		await db().query('ANALYZE');
 		return;
 	}
 	const started = Date.now();
@@ -89,10 +96,107 @@ async function main() {
 		       ('Output voltage, line to neutral, no load', 'V', 110 + j.number % 22, 118, 128)) AS r(label, unit, value, lo, hi)
 		 WHERE j.shop_id = :shopId`);
 	await q(`UPDATE shops SET next_job_number = 1001 + :n WHERE id = :shopId`, { n: JOBS });
+	await seedVolumeQuotes(shop.id);
 	await db().query('ANALYZE');
 	fs.mkdirSync(dataDir, { recursive: true });
 	fs.writeFileSync(path.join(dataDir, 'volume-sign-in.json'), JSON.stringify({ email: 'owner@northfield-volume.example', password }, null, 2), { mode: 0o600 });
 	console.log(`[mendwise] loaded ${JOBS} jobs in ${((Date.now() - started) / 1000).toFixed(1)} s; owner@northfield-volume.example / ${password}`);
+}
+
+/*
+ * Quotes, versions, answers and actuals for the volume shop, so the report benchmarks have a year
+ * and a half of history: three templates per kind of unit priced once by the engine, reused in SQL.
+ * Jobs past "diagnosing" have a sent quote (every tenth has two versions); answered jobs an
+ * approval or a decline; finished repairs the hours spent (every fifth shared by two people) and
+ * now and then a part beyond the quote. Runs once: a shop that already has quotes is left alone.
+ */
+async function seedVolumeQuotes(shopId: string) {
+	const [{ n }] = await db().query<{ n: number }>('SELECT count(*)::int AS n FROM quotes WHERE shop_id = :shopId', { replacements: { shopId }, type: QueryTypes.SELECT });
+	if (n > 0) return;
+	const started = Date.now();
+	const settings = { ...settingsToJson(defaultPricingSettings), labourCostRate: DEMO_LABOUR_COST_RATE };
+	const templates = UNIT_KINDS.flatMap((kind) =>
+		[0, 1, 2].map((k) => {
+			const template = TEMPLATES[kind][k % TEMPLATES[kind].length];
+			const draft = historyDraft(kind, template, template.lines, { description: 'Volume unit', ageYears: String(3 + k), engineHours: String(200 + 150 * k), condition: 'good' }, '89.00', k !== 1);
+			const content = { currency: 'USD', diagnosticFee: '89.00', unit: draft.unit, options: draft.options, settings };
+			const priced = evaluateRequest(content);
+			if (!priced.ok) throw new Error(`volume template did not price: ${priced.message}`);
+			const billed = template.lines.filter((l) => l.kind === 'labour').reduce((sum, l) => sum + Number(l.hours), 0);
+			return { kind, k, content, result: priced.result, hash: createHash('sha256').update(canonicalJson(content)).digest('hex'), billed };
+		})
+	);
+	const staff = await User.findAll({ where: { shopId }, order: [['email', 'ASC']] });
+	const owner = staff.find((u) => u.role === 'owner')!;
+	const techIds = staff.filter((u) => u.role === 'technician').map((u) => u.id);
+	const replacements = { shopId, owner: owner.id, techIds: `{${techIds.join(',')}}`, templates: JSON.stringify(templates) };
+	// One transaction with the report triggers deferred, then one refresh of every quoted job.
+	const transaction = await db().transaction();
+	const q = (sql: string) => db().query(sql, { replacements, transaction });
+	try {
+		await q(`SET LOCAL mendwise.defer_reports = 'on'`);
+		const TPL = `tpl AS (SELECT * FROM jsonb_to_recordset(:templates::jsonb) AS x(kind text, k int, content jsonb, result jsonb, hash text, billed numeric))`;
+		const APPROVED = `j.status IN ('approved', 'in_repair', 'ready') OR (j.status = 'picked_up' AND j.number % 7 <> 0)`;
+		await q(`
+			WITH ${TPL}
+			INSERT INTO quotes (shop_id, job_id, draft, sent_versions, edited_since_send, updated_by, created_at, updated_at)
+			SELECT :shopId, j.id, jsonb_build_object('unit', t.content->'unit', 'options', t.content->'options'),
+			       CASE WHEN j.number % 10 = 0 THEN 2 ELSE 1 END, false, :owner, j.created_at, j.created_at
+			  FROM jobs j JOIN units u ON u.id = j.unit_id JOIN tpl t ON t.kind = u.kind AND t.k = j.number % 3
+			 WHERE j.shop_id = :shopId AND j.status NOT IN ('checked_in', 'diagnosing')`);
+		await q(`
+			WITH ${TPL}
+			INSERT INTO quote_versions (shop_id, quote_id, number, content, result, content_hash, currency, valid_until, sent_by, sent_at)
+			SELECT :shopId, qt.id, v, t.content, t.result, t.hash, 'USD', (s.sent_at + interval '30 days')::date, :owner, s.sent_at
+			  FROM quotes qt JOIN jobs j ON j.id = qt.job_id JOIN units u ON u.id = j.unit_id
+			  JOIN tpl t ON t.kind = u.kind AND t.k = j.number % 3
+			  CROSS JOIN LATERAL generate_series(1, qt.sent_versions) v
+			  CROSS JOIN LATERAL (SELECT least(now() - interval '1 minute',
+			       j.created_at + (0.3 + (j.number % 5) * 0.4) * interval '1 day' + (v - 1) * interval '2 days') AS sent_at) s
+			 WHERE qt.shop_id = :shopId`);
+		await q(`
+			INSERT INTO approvals (shop_id, quote_id, version_id, decision, option_index, option_label, signer_name, reason, client_address, version_hash, created_at)
+			SELECT :shopId, qt.id, v.id, d.decision, d.option_index,
+			       CASE WHEN d.option_index IS NOT NULL THEN v.content->'options'->d.option_index->>'label' END,
+			       CASE WHEN d.decision = 'approved' THEN j.customer_name END,
+			       CASE WHEN d.decision = 'declined' THEN 'Not now.' ELSE '' END, 'volume', v.content_hash,
+			       least(now(), v.sent_at + (4 + (j.number % 97) * 1.3) * interval '1 hour')
+			  FROM quotes qt JOIN jobs j ON j.id = qt.job_id
+			  JOIN quote_versions v ON v.quote_id = qt.id AND v.number = qt.sent_versions
+			  CROSS JOIN LATERAL (SELECT CASE WHEN ${APPROVED} THEN 'approved' ELSE 'declined' END AS decision,
+			       CASE WHEN ${APPROVED} THEN CASE WHEN j.number % 6 = 0 THEN 1 ELSE 0 END END AS option_index) d
+			 WHERE qt.shop_id = :shopId AND j.status IN ('approved', 'declined', 'in_repair', 'ready', 'picked_up')`);
+		// Hours really spent: 0.8× to 1.6× the hours billed, in quarter hours.
+		await q(`
+			WITH ${TPL},
+			done AS (
+				SELECT j.id, j.number, a.created_at, coalesce(j.technician_id, (:techIds::uuid[])[1]) AS tech,
+				       (:techIds::uuid[])[1 + (j.number + 1) % array_length(:techIds::uuid[], 1)] AS helper,
+				       greatest(0.25, round(t.billed * (0.8 + (j.number % 9) * 0.1) * 4) / 4) AS spent
+				  FROM jobs j JOIN units u ON u.id = j.unit_id JOIN tpl t ON t.kind = u.kind AND t.k = j.number % 3
+				  JOIN quotes qt ON qt.job_id = j.id JOIN approvals a ON a.quote_id = qt.id
+				 WHERE j.shop_id = :shopId AND j.status IN ('ready', 'picked_up') AND a.decision = 'approved' AND a.option_index = 0)
+			INSERT INTO job_labour (shop_id, job_id, technician_id, hours, worked_on, recorded_by, created_at)
+			SELECT :shopId, d.id, p.who, p.hours, (d.created_at + interval '1 day')::date, p.who, d.created_at + interval '1 day'
+			  FROM done d CROSS JOIN LATERAL (
+			       SELECT d.tech AS who, CASE WHEN d.number % 5 = 0 AND d.helper <> d.tech THEN d.spent - greatest(0.25, round(d.spent * 0.3 * 4) / 4) ELSE d.spent END AS hours
+			       UNION ALL
+			       SELECT d.helper, greatest(0.25, round(d.spent * 0.3 * 4) / 4) WHERE d.number % 5 = 0 AND d.helper <> d.tech) p
+			 WHERE p.hours > 0`);
+		await q(`
+			INSERT INTO job_extra_parts (shop_id, job_id, description, quantity, unit_cost, recorded_by, created_at)
+			SELECT :shopId, l.job_id, 'Gasket set', 1, 5 + j.number % 40, l.technician_id, l.created_at
+			  FROM job_labour l JOIN jobs j ON j.id = l.job_id
+			 WHERE l.shop_id = :shopId AND j.number % 10 = 3 AND l.technician_id = coalesce(j.technician_id, (:techIds::uuid[])[1])`);
+		await q(`SET LOCAL mendwise.defer_reports = 'off'`);
+		await q(`SELECT report_refresh_jobs(ARRAY(SELECT job_id FROM quotes WHERE shop_id = :shopId))`);
+		await transaction.commit();
+	} catch (e) {
+		await transaction.rollback();
+		throw e;
+	}
+	const [{ rows }] = await db().query<{ rows: number }>('SELECT count(*)::int AS rows FROM job_outcomes WHERE shop_id = :shopId', { replacements, type: QueryTypes.SELECT });
+	console.log(`[mendwise] volume quotes, answers and actuals: ${rows} quoted jobs in ${((Date.now() - started) / 1000).toFixed(1)} s`);
 }
 
 main()

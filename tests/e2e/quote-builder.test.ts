@@ -6,8 +6,9 @@ import type { Page } from 'playwright-core';
 import { afterAll, describe, expect, it } from 'vitest';
 import { evaluateRequest } from '../../src/lib/pricing/evaluate';
 import { formatFixedMoney } from '../../src/lib/pricing/money';
-import { LabourOperation, Part, Quote, QuoteVersion, ReplacementUnit } from '../../src/lib/server/db/models';
+import { LabourOperation, Part, Quote, QuoteVersion, ReplacementUnit, Shop } from '../../src/lib/server/db/models';
 import * as jobs from '../../src/lib/server/jobs';
+import * as quotes from '../../src/lib/server/quotes';
 import * as settings from '../../src/lib/server/settings';
 import { DESKTOP, PHONE, closeBrowsers, openBrowser, screenshotDir } from '../helpers/browser';
 import { BASE_URL } from '../helpers/client';
@@ -144,6 +145,63 @@ describe('the quote builder in the browser', () => {
 		await repair.getByLabel('Unit cost').fill('12.50');
 		await error.waitFor({ state: 'detached' });
 		await page.getByTestId('break-even').waitFor();
+		await page.getByRole('button', { name: 'Save' }).click();
+		await page.getByText(/^Saved at/).waitFor();
+
+		// A staged diagnosis: two stages with likelihoods, an expected cost and a not-to-exceed.
+		await repair.getByRole('button', { name: 'Stage the diagnosis' }).click();
+		await expect(repair.getByLabel('Likelihood %').first().inputValue()).resolves.toBe('60');
+		await repair.getByText('Expected cost', { exact: true }).waitFor();
+		await repair.getByText('Not to exceed', { exact: true }).waitFor();
+		await page.getByRole('button', { name: 'Save' }).click();
+		await page.getByText(/^Saved at/).waitFor();
+		const stagedDraft = (await Quote.findOne({ where: { jobId: job.id } }))!.draft as { options: { stages?: { likelihood: string }[] }[] };
+		expect(stagedDraft.options[0].stages?.map((stage) => stage.likelihood)).toEqual(['0.6', '0.4']);
 		await page.screenshot({ path: path.join(screenshotDir, 'quote-builder-desktop.png'), fullPage: true });
+
+		// Someone else saves meanwhile: this page's save is refused, its edits stay on screen until "reload theirs".
+		const stored = (await Quote.findOne({ where: { jobId: job.id } }))!;
+		const theirs = structuredClone(stored.draft) as { options: { label: string }[] };
+		theirs.options[0].label = 'Repair as the manager priced it';
+		await quotes.saveDraft(actor(shop, 'manager'), job.id, theirs, stored.lockVersion);
+		const name = page.getByLabel('Name of option 1');
+		await name.fill('My rebuild');
+		await page.getByRole('button', { name: 'Save' }).click();
+		await page.getByRole('alert').filter({ hasText: 'Someone else saved this quote' }).waitFor();
+		await expect(name.inputValue()).resolves.toBe('My rebuild');
+		expect(((await Quote.findOne({ where: { jobId: job.id } }))!.draft as { options: { label: string }[] }).options[0].label).toBe('Repair as the manager priced it');
+		await page.getByRole('button', { name: 'Reload theirs (drops my changes)' }).click();
+		await page.waitForFunction(() => (document.getElementById('f-options-0-label') as HTMLInputElement | null)?.value === 'Repair as the manager priced it');
+		await page.getByText('All changes saved').or(page.getByText('Showing the latest saved quote.')).first().waitFor();
+	});
+
+	it('where technicians may not see costs, the builder prices parts by their sell price and shows no cost or margin', async () => {
+		const shop = await createShop('Builder no costs');
+		const row = (await Shop.findByPk(shop.id))!;
+		row.set({ settings: { techniciansSeeCosts: false } });
+		await row.save();
+		const job = await generatorJob(shop);
+		const page = await (await openBrowser(PHONE)).newPage();
+		await signIn(page, shop.staff.technician.email, shop.staff.technician.password);
+		await page.goto(`${BASE_URL}/jobs/${job.id}/quote`);
+		const repair = page.locator('article[data-option-kind="repair"]');
+		await repair.getByLabel('Find a catalog part').fill('HG-AH55');
+		await repair.getByRole('button', { name: 'Add catalog part' }).click();
+		// 312.00 × 1.50 (default tier up to 500) = 468.00 each.
+		await expect(repair.getByLabel('Price each', { exact: true }).inputValue()).resolves.toBe('468.00');
+		await expect(repair.getByLabel('Unit cost').count()).resolves.toBe(0);
+		// 468.00 less the 89.00 diagnostic fee credited; no labour, so no shop supplies.
+		await page.waitForFunction(() => document.querySelector('article[data-option-kind="repair"] [data-testid="option-total"]')?.textContent === '$379.00');
+		await page.getByRole('heading', { name: 'Verdict: No comparison yet' }).waitFor();
+		await expect(page.getByText('Our cost').count()).resolves.toBe(0);
+		await expect(page.getByText('Margin', { exact: true }).count()).resolves.toBe(0);
+		await expect(page.getByText(/margin \d/i).count()).resolves.toBe(0);
+		await page.getByText('The shop keeps part costs and margins from technicians', { exact: false }).waitFor();
+		expect(await page.content()).not.toContain('312.00');
+		await page.getByRole('button', { name: 'Save' }).click();
+		await page.getByText(/^Saved at/).waitFor();
+		const line = ((await Quote.findOne({ where: { jobId: job.id } }))!.draft as { options: { lines: Record<string, unknown>[] }[] }).options[0].lines[0];
+		expect(line.unitCost).toBe('312.00');
+		expect(line.unitPrice).toBeUndefined();
 	});
 });

@@ -288,6 +288,37 @@ describe('costs and margins by role', () => {
 	});
 });
 
+describe('the part picker', () => {
+	it('a long parts list is searched on the server: own shop only, costs only for those who see them', async () => {
+		const big = await createShop('Quote builder big catalog');
+		const owner = await signedIn(big.staff.owner.email, big.staff.owner.password);
+		const technician = await signedIn(big.staff.technician.email, big.staff.technician.password);
+		await Part.bulkCreate(
+			Array.from({ length: 305 }, (_, i) => ({ shopId: big.id, number: `BK-${String(i).padStart(4, '0')}`, description: `Spare ${i}`, cost: '20.00' }))
+		);
+		await Part.create({ shopId: other.id, number: 'BK-0304', description: 'Another shop', cost: '1.00' });
+		const { job } = await createJob(big);
+		const { data } = await pageData(owner, job.id);
+		expect(data.catalog.parts).toHaveLength(300);
+		expect(data.catalog.partsTotal).toBe(305);
+
+		const found = await owner.get(`/jobs/${job.id}/quote/parts?q=BK-0304`);
+		expect(found.status).toBe(200);
+		// 20.00 × 2.00 (default tier up to 50) = 40.00.
+		expect(found.json().parts).toEqual([expect.objectContaining({ number: 'BK-0304', description: 'Spare 304', cost: '20.00', price: '40.00' })]);
+
+		await setShopSettings(big.id, { techniciansSeeCosts: false });
+		const hidden = (await technician.get(`/jobs/${job.id}/quote/parts?q=BK-0304`)).json().parts;
+		expect(hidden[0].price).toBe('40.00');
+		expect(hidden[0].cost).toBeUndefined();
+
+		expect((await new Client().get(`/jobs/${job.id}/quote/parts?q=BK`)).status).toBe(401);
+		const foreign = await outsider.get(`/jobs/${job.id}/quote/parts?q=BK`);
+		expect(foreign.status).toBe(404);
+		expect(foreign.text).not.toContain('Spare');
+	});
+});
+
 describe('who may reach the builder', () => {
 	it('anonymous visitors are sent to sign in; JSON answers 401', async () => {
 		const { job } = await createJob(shop);

@@ -5,6 +5,7 @@ import { Customer, Shop, SpecSheet, Unit, User, type Role } from './db/models';
 import * as jobs from './jobs';
 import * as readings from './readings';
 import { seedDemoCatalog } from './demo-catalog';
+import { seedDemoHistory } from './demo-history';
 import { seedStarterSheets } from './specs';
 
 // The demo scenario: an invented shop in an invented town. Every name here is made up.
@@ -60,6 +61,8 @@ export async function seedDemo(): Promise<DemoSignIn[] | null> {
 		return { shop, staff, customers };
 	});
 	await seedDemoJobs(shop.id, staff, customers);
+	// Reports: eighteen months of finished jobs (demo-history.ts), so every chart has data.
+	await seedDemoHistory(shop.id, { technicians: staff.filter((u) => u.role === 'technician').map((u) => u.id), writer: staff.find((u) => u.role === 'writer')!.id });
 	return signIns;
 }
 

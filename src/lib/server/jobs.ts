@@ -6,7 +6,7 @@ import * as audit from './audit';
 import { db } from './db';
 import { Customer, Job, Shop, Unit, User } from './db/models';
 import { UserError } from './errors';
-import { decimalString, isUuid, optionalText, requiredText } from './validators';
+import { decimalString, isUuid, optionalText, plainNumber, requiredText } from './validators';
 
 interface Actor {
 	id: string;
@@ -35,7 +35,7 @@ export type CheckInInput = z.infer<typeof checkInSchema>;
 export const findingsSchema = z.object({
 	failedComponent: optionalText(120, 'The failed component'),
 	findings: optionalText(4000, 'The findings'),
-	lockVersion: z.coerce.number().int().min(0)
+	lockVersion: z.preprocess(plainNumber, z.coerce.number().int().min(0).max(2_147_483_647))
 });
 
 /** Who may move a job into each status: the desk talks to customers, the bench does the work. */
@@ -155,6 +155,7 @@ export async function transition(actor: Actor | CustomerActor, jobId: string, to
 
 /** Saves the technician's findings unless someone else saved since the page was loaded. */
 export async function saveFindings(actor: Actor, jobId: string, input: z.infer<typeof findingsSchema>) {
+	if (!isUuid(jobId)) throw new UserError('No such job in your shop.');
 	const [count] = await Job.update(
 		{ failedComponent: input.failedComponent, findings: input.findings, lockVersion: input.lockVersion + 1 },
 		{ where: { id: jobId, shopId: actor.shopId, lockVersion: input.lockVersion } }

@@ -120,15 +120,18 @@ export async function saveDraft(actor: Actor, jobId: string, draft: unknown, loc
 	const priced = await evaluateDraft(actor.shopId, job, draft);
 	if (!priced.ok) throw new DraftInvalid(priced.message, priced.issues);
 	const clean = { unit: (draft as QuoteDraft).unit, options: (draft as QuoteDraft).options };
-	const [count] = await Quote.update(
-		{ draft: clean as unknown as Record<string, unknown>, lockVersion: lockVersion + 1, editedSinceSend: true, updatedBy: actor.id },
-		{ where: { shopId: actor.shopId, jobId, lockVersion } }
-	);
-	if (count === 0) {
-		if (!(await Quote.findOne({ where: { shopId: actor.shopId, jobId } }))) throw new UserError('Open the quote builder first.');
-		throw new QuoteConflict('Someone else saved this quote after you opened it. Your changes are still on screen: reload to see theirs, then apply yours again.');
-	}
-	await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'quote.saved', entity: 'job', entityId: jobId });
+	// The draft, its lock version and the audit record land together or not at all.
+	await db().transaction(async (transaction) => {
+		const [count] = await Quote.update(
+			{ draft: clean as unknown as Record<string, unknown>, lockVersion: lockVersion + 1, editedSinceSend: true, updatedBy: actor.id },
+			{ where: { shopId: actor.shopId, jobId, lockVersion }, transaction }
+		);
+		if (count === 0) {
+			if (!(await Quote.findOne({ where: { shopId: actor.shopId, jobId }, transaction }))) throw new UserError('Open the quote builder first.');
+			throw new QuoteConflict('Someone else saved this quote after you opened it. Your changes are still on screen: reload to see theirs, then apply yours again.');
+		}
+		await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'quote.saved', entity: 'job', entityId: jobId }, transaction);
+	});
 	return { lockVersion: lockVersion + 1, result: priced.result };
 }
 

@@ -5,10 +5,10 @@ import { db } from './db';
 import { Shop } from './db/models';
 
 /*
- * The manager's reports. Every figure is summed in PostgreSQL from job_outcomes (one row per quoted
- * job, kept by triggers; see docs/reports.md for the basis of each figure). Each report has row
- * expressions (one row per job, or per job and technician), an aggregate over exactly those rows
- * for the chart and table, and a CSV of the same rows with names added.
+ * The manager's reports. Every figure is summed in PostgreSQL (see docs/reports.md for the basis of
+ * each): per-job rows in the views report_job_rows and report_technician_rows, kept by triggers from
+ * the quotes, answers and actuals; monthly sums of them for whole months; the rows themselves for
+ * the CSVs and for the days at either end of a period.
  */
 
 export const REPORT_NAMES = ['revenue', 'margin', 'approval', 'outcomes', 'outcomes-by-kind', 'days-to-approval', 'technicians', 'margin-lost'] as const;
@@ -86,81 +86,118 @@ export function isReportName(name: string): name is ReportName {
 }
 
 // ---------------------------------------------------------------------------------------------
-// SQL pieces. Periods are whole UTC days: from 00:00 on `from` up to, not including, the day after `to`.
+// SQL pieces. Periods are whole UTC days: from 00:00 on `from` up to, not including, the day after
+// `to`. Whole months inside the period come from the monthly sums (report_months,
+// report_technician_months), the days before the first whole month and after the last from the
+// daily sums the monthly ones are built from; the CSVs read the per-job rows those are built from.
 
 interface Scope {
 	replacements: Record<string, unknown>;
-	/** Conditions on job_outcomes o: shop, technician (the job's assigned one) and unit kind. */
-	where: string;
+	/** Technician and kind conditions for a table aliased `alias`. */
+	filters(alias: string, technicianColumn?: string): string;
 }
 
-function scope(shopId: string, filters: Filters, { byAssignedTechnician = true } = {}): Scope {
-	const conditions = ['o.shop_id = :shopId'];
+const DAY_MS = 86_400_000;
+const iso = (ms: number) => new Date(ms).toISOString();
+const firstOfMonth = (ms: number) => {
+	const d = new Date(ms);
+	return Date.UTC(d.getUTCFullYear(), d.getUTCMonth(), 1);
+};
+const nextMonth = (ms: number) => {
+	const d = new Date(ms);
+	return Date.UTC(d.getUTCFullYear(), d.getUTCMonth() + 1, 1);
+};
+
+function scope(shopId: string, filters: Filters): Scope {
+	const start = Date.parse(`${filters.from}T00:00:00Z`);
+	const end = Date.parse(`${filters.to}T00:00:00Z`) + DAY_MS;
+	let fullFrom = firstOfMonth(start) === start ? start : nextMonth(start);
+	let fullTo = firstOfMonth(end);
+	// No whole month inside: every day is read from the per-job rows.
+	if (fullFrom >= fullTo) fullFrom = fullTo = end;
 	const replacements: Record<string, unknown> = {
 		shopId,
 		from: filters.from,
 		to: filters.to,
-		start: `${filters.from}T00:00:00Z`,
-		end: new Date(Date.parse(`${filters.to}T00:00:00Z`) + 86_400_000).toISOString()
+		start: iso(start),
+		end: iso(end),
+		fullFrom: iso(fullFrom).slice(0, 10),
+		fullTo: iso(fullTo).slice(0, 10)
 	};
-	if (filters.technician) {
-		replacements.technician = filters.technician;
-		if (byAssignedTechnician) conditions.push('o.technician_id = :technician');
-	}
-	if (filters.kind) {
-		conditions.push('o.unit_kind = :kind');
-		replacements.kind = filters.kind;
-	}
-	return { where: conditions.join(' AND '), replacements };
+	if (filters.technician) replacements.technician = filters.technician;
+	if (filters.kind) replacements.kind = filters.kind;
+	return {
+		replacements,
+		filters: (alias, technicianColumn = 'technician_id') =>
+			(filters.technician ? ` AND ${alias}.${technicianColumn} = :technician` : '') + (filters.kind ? ` AND ${alias}.unit_kind = :kind` : '')
+	};
 }
 
-const decidedIn = `o.decided_at >= :start::timestamptz AND o.decided_at < :end::timestamptz`;
-const sentIn = `o.first_sent_at >= :start::timestamptz AND o.first_sent_at < :end::timestamptz`;
-const monthOf = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM')`;
+const inPeriod = (column: string) => `${column} >= :start::timestamptz AND ${column} < :end::timestamptz`;
 const dayOf = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM-DD')`;
+const monthOf = (column: string) => `to_char(${column} AT TIME ZONE 'UTC', 'YYYY-MM')`;
 /** Every month of the period, so empty months show as zero rather than vanish. */
-const MONTHS = `SELECT to_char(m, 'YYYY-MM') AS month
-	FROM generate_series(date_trunc('month', :from::date), :to::date, interval '1 month') m`;
-const percent = (part: string, whole: string) => `round(100 * (${part}) / nullif(${whole}, 0), 1)`;
+const MONTHS = `SELECT m::date AS month FROM generate_series(date_trunc('month', :from::date), :to::date, interval '1 month') m`;
+const percent = (part: string, whole: string) => `round(100 * (${part})::numeric / nullif(${whole}, 0), 1)`;
 
-/** Names and labels the CSV adds to each job's row. */
+const CONTRIBUTION_COLUMNS = [
+	'sent', 'sent_approved', 'sent_declined', 'approved', 'repaired', 'replaced', 'declined',
+	'revenue', 'parts_sell', 'labour_sell', 'other_sell', 'parts_profit', 'labour_profit', 'other_profit', 'gross_profit',
+	'days_sum', 'within_1', 'within_3', 'within_7',
+	'actuals_jobs', 'losing_jobs', 'actuals_quoted_profit', 'actuals_gross_profit', 'margin_lost'
+].join(', ');
+
+const edgeDays = (column: string) =>
+	`((${column} >= :from::date AND ${column} < :fullFrom::date) OR (${column} >= :fullTo::date AND ${column} <= :to::date))`;
+
+/** Per month, technician and kind: the sums of the whole months and of the days at either end. */
+const contributions = (s: Scope) => `
+	SELECT r.month, r.technician_id, r.unit_kind, ${CONTRIBUTION_COLUMNS}
+	  FROM report_months r
+	 WHERE r.shop_id = :shopId AND r.month >= :fullFrom::date AND r.month < :fullTo::date${s.filters('r')}
+	UNION ALL
+	SELECT date_trunc('month', d.day)::date, d.technician_id, d.unit_kind, ${CONTRIBUTION_COLUMNS}
+	  FROM report_days d
+	 WHERE d.shop_id = :shopId AND ${edgeDays('d.day')}${s.filters('d')}`;
+
+const TECHNICIAN_COLUMNS = 'jobs, hours_billed, hours_spent, revenue, gross_profit';
+const technicianContributions = (s: Scope) => `
+	SELECT r.month, r.technician_id, r.unit_kind, ${TECHNICIAN_COLUMNS}
+	  FROM report_technician_months r
+	 WHERE r.shop_id = :shopId AND r.month >= :fullFrom::date AND r.month < :fullTo::date${s.filters('r')}
+	UNION ALL
+	SELECT date_trunc('month', d.day)::date, d.technician_id, d.unit_kind, ${TECHNICIAN_COLUMNS}
+	  FROM report_technician_days d
+	 WHERE d.shop_id = :shopId AND ${edgeDays('d.day')}${s.filters('d')}`;
+
+/** Monthly rows: `measures` are aggregate expressions over the contributions `c`. */
+const byMonth = (s: Scope, measures: string) => `
+	SELECT to_char(m.month, 'YYYY-MM') AS month, ${measures}
+	  FROM (${MONTHS}) m LEFT JOIN (${contributions(s)}) c ON c.month = m.month
+	 GROUP BY m.month ORDER BY m.month`;
+const overall = (s: Scope, measures: string) => `SELECT ${measures} FROM (${contributions(s)}) c`;
+
+/** The labelled rows behind a report, for its CSV. */
+const jobRows = (s: Scope, dateColumn: 'decided_at' | 'first_sent_at', extra = '') => `
+	SELECT d.* FROM report_job_rows d
+	 WHERE d.shop_id = :shopId AND ${inPeriod(`d.${dateColumn}`)}${s.filters('d')}${extra}`;
 const JOB_LABELS = `LEFT JOIN jobs j ON j.id = d.job_id AND j.shop_id = :shopId`;
+const TECH_JOIN = `LEFT JOIN users t ON t.id = d.technician_id AND t.shop_id = :shopId`;
+const JOB_CSV_HEAD = `j.number AS job, ${dayOf('d.decided_at')} AS approved_on, ${monthOf('d.decided_at')} AS month,
+	j.customer_name AS customer, j.unit_label AS unit, d.unit_kind AS kind, coalesce(t.name, 'Unassigned') AS technician`;
 
 interface Definition {
 	title: string;
 	basis: string;
 	columns: Column[];
 	csvColumns: Column[];
-	/** One row per job (or per job and technician), with the columns the aggregate needs and `job_id`. */
-	rows(s: Scope): string;
-	aggregate(rows: string): string;
-	totals(rows: string): string;
-	/** The CSV: the same rows, labelled. `d` is the rows subquery. */
-	csv(rows: string): string;
-	/** Rows the chart shows when it shows only some of the aggregate (margin lost). */
-	limit?: number;
+	aggregate(s: Scope): string;
+	totals(s: Scope): string;
+	csv(s: Scope): string;
 }
 
 const money = (key: string, label: string): Column => ({ key, label, format: 'money' });
 const count = (key: string, label: string): Column => ({ key, label, format: 'count' });
-
-const APPROVED_JOB_ROWS = (s: Scope, extra = '') => `
-	SELECT o.job_id, o.job_number, o.decided_at, ${monthOf('o.decided_at')} AS month, o.unit_kind, o.technician_id,
-	       o.revenue, o.parts_sell, o.labour_sell, o.revenue - o.parts_sell - o.labour_sell AS other_sell,
-	       o.parts_cost, o.extra_parts_cost, o.labour_cost AS quoted_labour_cost, o.actual_labour_cost,
-	       o.cost - o.parts_cost - o.labour_cost AS other_cost,
-	       o.parts_sell - o.parts_cost - o.extra_parts_cost AS parts_profit,
-	       o.labour_sell - o.actual_labour_cost AS labour_profit,
-	       (o.revenue - o.parts_sell - o.labour_sell) - (o.cost - o.parts_cost - o.labour_cost) AS other_profit,
-	       o.gross_profit AS quoted_profit, o.actual_gross_profit AS gross_profit,
-	       o.billed_hours, o.actual_hours, o.margin_lost, o.option_label${extra}
-	  FROM job_outcomes o
-	 WHERE ${s.where} AND o.decision = 'approved' AND ${decidedIn}`;
-
-const JOB_CSV_HEAD = `j.number AS job, ${dayOf('d.decided_at')} AS approved_on, d.month,
-	j.customer_name AS customer, j.unit_label AS unit, d.unit_kind AS kind,
-	coalesce(t.name, 'Unassigned') AS technician`;
-const TECH_JOIN = `LEFT JOIN users t ON t.id = d.technician_id AND t.shop_id = :shopId`;
 const JOB_CSV_HEAD_COLUMNS: Column[] = [
 	count('job', 'Job'),
 	{ key: 'approved_on', label: 'Approved on', format: 'date' },
@@ -171,11 +208,44 @@ const JOB_CSV_HEAD_COLUMNS: Column[] = [
 	{ key: 'technician', label: 'Technician', format: 'text' }
 ];
 
+const REVENUE = `coalesce(sum(c.approved), 0)::int AS jobs, coalesce(sum(c.parts_sell), 0) AS parts, coalesce(sum(c.labour_sell), 0) AS labour,
+	coalesce(sum(c.other_sell), 0) AS other, coalesce(sum(c.revenue), 0) AS revenue`;
+const MARGIN = `coalesce(sum(c.parts_profit), 0) AS parts, coalesce(sum(c.labour_profit), 0) AS labour, coalesce(sum(c.other_profit), 0) AS other,
+	coalesce(sum(c.gross_profit), 0) AS "grossProfit", coalesce(sum(c.revenue), 0) AS revenue, ${percent('sum(c.gross_profit)', 'sum(c.revenue)')} AS "marginPercent"`;
+const APPROVAL = `coalesce(sum(c.sent), 0)::int AS sent, coalesce(sum(c.sent_approved), 0)::int AS approved, coalesce(sum(c.sent_declined), 0)::int AS declined,
+	coalesce(sum(c.sent) - sum(c.sent_approved) - sum(c.sent_declined), 0)::int AS unanswered, ${percent('sum(c.sent_approved)', 'sum(c.sent)')} AS "ratePercent"`;
+const OUTCOMES = `coalesce(sum(c.repaired), 0)::int AS repaired, coalesce(sum(c.replaced), 0)::int AS replaced, coalesce(sum(c.declined), 0)::int AS declined`;
+const DAYS = `coalesce(sum(c.approved), 0)::int AS approvals, round(sum(c.days_sum) / nullif(sum(c.approved), 0), 1) AS "averageDays",
+	coalesce(sum(c.within_1), 0)::int AS "withinDay", coalesce(sum(c.within_3) - sum(c.within_1), 0)::int AS "oneToThree",
+	coalesce(sum(c.within_7) - sum(c.within_3), 0)::int AS "threeToSeven", coalesce(sum(c.approved) - sum(c.within_7), 0)::int AS "overWeek"`;
+const LOST_TOTALS = `coalesce(sum(c.actuals_jobs), 0)::int AS jobs, coalesce(sum(c.losing_jobs), 0)::int AS "jobsLosing",
+	coalesce(sum(c.actuals_quoted_profit), 0) AS "quotedProfit", coalesce(sum(c.actuals_gross_profit), 0) AS "grossProfit",
+	coalesce(sum(c.margin_lost), 0) AS "marginLost"`;
+function outcomeCsvColumns(): Column[] {
+	return [
+		count('job', 'Job'),
+		{ key: 'decided_on', label: 'Answered on', format: 'date' },
+		{ key: 'month', label: 'Month', format: 'month' },
+		{ key: 'customer', label: 'Customer', format: 'text' },
+		{ key: 'kind', label: 'Kind', format: 'text' },
+		{ key: 'technician', label: 'Technician', format: 'text' },
+		{ key: 'outcome', label: 'Outcome', format: 'text' },
+		{ key: 'option', label: 'Option approved', format: 'text' }
+	];
+}
+
+function outcomeCsv(s: Scope): string {
+	return `
+		SELECT j.number AS job, ${dayOf('d.decided_at')} AS decided_on, ${monthOf('d.decided_at')} AS month, j.customer_name AS customer,
+		       d.unit_kind AS kind, coalesce(t.name, 'Unassigned') AS technician, d.outcome, d.option_label AS option
+		  FROM (${jobRows(s, 'decided_at')}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`;
+}
+
 const DEFINITIONS: Record<ReportName, Definition> = {
 	revenue: {
 		title: 'Revenue by month',
 		basis:
-			'Approved jobs by the month the customer approved: the approved option as quoted, before tax, split into parts, labour and everything else (fees, shop supplies, sublet work, new units, discounts).',
+			'Approved jobs by the month the customer approved: the approved option as quoted, before tax, split into parts, labour and everything else (fees, shop supplies, sublet work, new units, discounts and diagnostic credits).',
 		columns: [
 			{ key: 'month', label: 'Month', format: 'month' },
 			count('jobs', 'Jobs approved'),
@@ -185,18 +255,11 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			money('revenue', 'Revenue')
 		],
 		csvColumns: [...JOB_CSV_HEAD_COLUMNS, { key: 'option', label: 'Option approved', format: 'text' }, money('parts', 'Parts'), money('labour', 'Labour'), money('other', 'Other'), money('revenue', 'Revenue')],
-		rows: (s) => APPROVED_JOB_ROWS(s),
-		aggregate: (rows) => `
-			SELECT m.month, count(d.job_id)::int AS jobs, coalesce(sum(d.parts_sell), 0) AS parts, coalesce(sum(d.labour_sell), 0) AS labour,
-			       coalesce(sum(d.other_sell), 0) AS other, coalesce(sum(d.revenue), 0) AS revenue
-			  FROM (${MONTHS}) m LEFT JOIN (${rows}) d ON d.month = m.month
-			 GROUP BY m.month ORDER BY m.month`,
-		totals: (rows) => `
-			SELECT count(*)::int AS jobs, coalesce(sum(d.parts_sell), 0) AS parts, coalesce(sum(d.labour_sell), 0) AS labour,
-			       coalesce(sum(d.other_sell), 0) AS other, coalesce(sum(d.revenue), 0) AS revenue FROM (${rows}) d`,
-		csv: (rows) => `
+		aggregate: (s) => byMonth(s, REVENUE),
+		totals: (s) => overall(s, REVENUE),
+		csv: (s) => `
 			SELECT ${JOB_CSV_HEAD}, d.option_label AS option, d.parts_sell AS parts, d.labour_sell AS labour, d.other_sell AS other, d.revenue
-			  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
+			  FROM (${jobRows(s, 'decided_at', " AND d.decision = 'approved'")}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
 	},
 	margin: {
 		title: 'Gross margin by month',
@@ -227,23 +290,13 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			money('quoted_profit', 'Gross profit as quoted'),
 			money('grossProfit', 'Gross profit')
 		],
-		rows: (s) => APPROVED_JOB_ROWS(s),
-		aggregate: (rows) => `
-			SELECT m.month, coalesce(sum(d.parts_profit), 0) AS parts, coalesce(sum(d.labour_profit), 0) AS labour,
-			       coalesce(sum(d.other_profit), 0) AS other, coalesce(sum(d.gross_profit), 0) AS "grossProfit",
-			       coalesce(sum(d.revenue), 0) AS revenue, ${percent('sum(d.gross_profit)', 'sum(d.revenue)')} AS "marginPercent"
-			  FROM (${MONTHS}) m LEFT JOIN (${rows}) d ON d.month = m.month
-			 GROUP BY m.month ORDER BY m.month`,
-		totals: (rows) => `
-			SELECT coalesce(sum(d.parts_profit), 0) AS parts, coalesce(sum(d.labour_profit), 0) AS labour,
-			       coalesce(sum(d.other_profit), 0) AS other, coalesce(sum(d.gross_profit), 0) AS "grossProfit",
-			       coalesce(sum(d.revenue), 0) AS revenue, ${percent('sum(d.gross_profit)', 'sum(d.revenue)')} AS "marginPercent"
-			  FROM (${rows}) d`,
-		csv: (rows) => `
+		aggregate: (s) => byMonth(s, MARGIN),
+		totals: (s) => overall(s, MARGIN),
+		csv: (s) => `
 			SELECT ${JOB_CSV_HEAD}, d.revenue, d.parts_sell, d.parts_cost, d.extra_parts_cost, d.parts_profit AS parts,
 			       d.labour_sell, d.billed_hours, d.actual_hours, d.actual_labour_cost AS labour_cost, d.labour_profit AS labour,
 			       d.other_profit AS other, d.quoted_profit, d.gross_profit AS "grossProfit"
-			  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
+			  FROM (${jobRows(s, 'decided_at', " AND d.decision = 'approved'")}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
 	},
 	approval: {
 		title: 'Approval rate of sent quotes',
@@ -268,66 +321,48 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			{ key: 'decision', label: 'Answer', format: 'text' },
 			{ key: 'decided_on', label: 'Answered on', format: 'date' }
 		],
-		rows: (s) => `
-			SELECT o.job_id, o.first_sent_at, ${monthOf('o.first_sent_at')} AS month, o.unit_kind, o.technician_id,
-			       o.versions_sent, o.decision, o.decided_at
-			  FROM job_outcomes o WHERE ${s.where} AND ${sentIn}`,
-		aggregate: (rows) => `
-			SELECT m.month, count(d.job_id)::int AS sent, count(*) FILTER (WHERE d.decision = 'approved')::int AS approved,
-			       count(*) FILTER (WHERE d.decision = 'declined')::int AS declined,
-			       count(*) FILTER (WHERE d.job_id IS NOT NULL AND d.decision IS NULL)::int AS unanswered,
-			       ${percent("count(*) FILTER (WHERE d.decision = 'approved')", 'count(d.job_id)')} AS "ratePercent"
-			  FROM (${MONTHS}) m LEFT JOIN (${rows}) d ON d.month = m.month
-			 GROUP BY m.month ORDER BY m.month`,
-		totals: (rows) => `
-			SELECT count(*)::int AS sent, count(*) FILTER (WHERE d.decision = 'approved')::int AS approved,
-			       count(*) FILTER (WHERE d.decision = 'declined')::int AS declined,
-			       count(*) FILTER (WHERE d.decision IS NULL)::int AS unanswered,
-			       ${percent("count(*) FILTER (WHERE d.decision = 'approved')", 'count(*)')} AS "ratePercent"
-			  FROM (${rows}) d`,
-		csv: (rows) => `
-			SELECT j.number AS job, ${dayOf('d.first_sent_at')} AS first_sent_on, d.month, j.customer_name AS customer, d.unit_kind AS kind,
-			       coalesce(t.name, 'Unassigned') AS technician, d.versions_sent AS versions, coalesce(d.decision, 'unanswered') AS decision,
-			       ${dayOf('d.decided_at')} AS decided_on
-			  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.first_sent_at, j.number`
+		aggregate: (s) => byMonth(s, APPROVAL),
+		totals: (s) => overall(s, APPROVAL),
+		csv: (s) => `
+			SELECT j.number AS job, ${dayOf('d.first_sent_at')} AS first_sent_on, ${monthOf('d.first_sent_at')} AS month, j.customer_name AS customer,
+			       d.unit_kind AS kind, coalesce(t.name, 'Unassigned') AS technician, d.versions_sent AS versions,
+			       coalesce(d.decision, 'unanswered') AS decision, ${dayOf('d.decided_at')} AS decided_on
+			  FROM (${jobRows(s, 'first_sent_at')}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.first_sent_at, j.number`
 	},
 	outcomes: {
 		title: 'Outcomes by month',
-		basis:
-			"Customers' answers by the month they answered: repaired (a repair option approved), replaced (a replacement unit approved) or declined.",
+		basis: "Customers' answers by the month they answered: repaired (a repair option approved), replaced (a replacement unit approved) or declined.",
 		columns: [{ key: 'month', label: 'Month', format: 'month' }, count('repaired', 'Repaired'), count('replaced', 'Replaced'), count('declined', 'Declined')],
 		csvColumns: outcomeCsvColumns(),
-		rows: outcomeRows,
-		aggregate: (rows) => `
-			SELECT m.month, ${outcomeCounts}
-			  FROM (${MONTHS}) m LEFT JOIN (${rows}) d ON d.month = m.month
-			 GROUP BY m.month ORDER BY m.month`,
-		totals: (rows) => `SELECT ${outcomeCounts} FROM (${rows}) d`,
+		aggregate: (s) => byMonth(s, OUTCOMES),
+		totals: (s) => overall(s, OUTCOMES),
 		csv: outcomeCsv
 	},
 	'outcomes-by-kind': {
 		title: 'Outcomes by kind of unit',
-		basis: "The same answers as outcomes by month, for the whole period, by the kind of unit on the job.",
+		basis: 'The same answers as outcomes by month, for the whole period, by the kind of unit on the job.',
 		columns: [{ key: 'kind', label: 'Kind of unit', format: 'text' }, count('repaired', 'Repaired'), count('replaced', 'Replaced'), count('declined', 'Declined')],
 		csvColumns: outcomeCsvColumns(),
-		rows: outcomeRows,
-		aggregate: (rows) => `
-			SELECT k.kind, ${outcomeCounts}
+		aggregate: (s) => `
+			SELECT k.kind, ${OUTCOMES}
 			  FROM unnest(ARRAY[${UNIT_KINDS.map((k) => `'${k}'`).join(', ')}]::varchar[]) WITH ORDINALITY AS k(kind, position)
-			  LEFT JOIN (${rows}) d ON d.unit_kind = k.kind
+			  LEFT JOIN (${contributions(s)}) c ON c.unit_kind = k.kind
 			 GROUP BY k.kind, k.position ORDER BY k.position`,
-		totals: (rows) => `SELECT ${outcomeCounts} FROM (${rows}) d`,
+		totals: (s) => overall(s, OUTCOMES),
 		csv: outcomeCsv
 	},
 	'days-to-approval': {
 		title: 'Days from quote to approval',
 		basis:
-			'Approved quotes by the month of approval: days from the first version sent to the customer\u2019s approval, each rounded to a hundredth of a day; the average and the median of those.',
+			'Approved quotes by the month of approval: days from the first version sent to the approval, each rounded to a hundredth of a day; their average, and how many came within a day, within three days, within a week, or later.',
 		columns: [
 			{ key: 'month', label: 'Month approved', format: 'month' },
 			count('approvals', 'Approvals'),
 			{ key: 'averageDays', label: 'Average days', format: 'days' },
-			{ key: 'medianDays', label: 'Median days', format: 'days' }
+			count('withinDay', 'Within a day'),
+			count('oneToThree', '1 to 3 days'),
+			count('threeToSeven', '3 to 7 days'),
+			count('overWeek', 'Over a week')
 		],
 		csvColumns: [
 			count('job', 'Job'),
@@ -339,28 +374,17 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			{ key: 'technician', label: 'Technician', format: 'text' },
 			{ key: 'days', label: 'Days to approval', format: 'days' }
 		],
-		rows: (s) => `
-			SELECT o.job_id, o.first_sent_at, o.decided_at, ${monthOf('o.decided_at')} AS month, o.unit_kind, o.technician_id,
-			       round(extract(epoch FROM o.decided_at - o.first_sent_at) / 86400, 2) AS days
-			  FROM job_outcomes o WHERE ${s.where} AND o.decision = 'approved' AND ${decidedIn}`,
-		aggregate: (rows) => `
-			SELECT m.month, count(d.job_id)::int AS approvals, round(avg(d.days), 1) AS "averageDays",
-			       round((percentile_cont(0.5) WITHIN GROUP (ORDER BY d.days))::numeric, 1) AS "medianDays"
-			  FROM (${MONTHS}) m LEFT JOIN (${rows}) d ON d.month = m.month
-			 GROUP BY m.month ORDER BY m.month`,
-		totals: (rows) => `
-			SELECT count(*)::int AS approvals, round(avg(d.days), 1) AS "averageDays",
-			       round((percentile_cont(0.5) WITHIN GROUP (ORDER BY d.days))::numeric, 1) AS "medianDays"
-			  FROM (${rows}) d`,
-		csv: (rows) => `
-			SELECT j.number AS job, ${dayOf('d.first_sent_at')} AS first_sent_on, ${dayOf('d.decided_at')} AS approved_on, d.month,
+		aggregate: (s) => byMonth(s, DAYS),
+		totals: (s) => overall(s, DAYS),
+		csv: (s) => `
+			SELECT j.number AS job, ${dayOf('d.first_sent_at')} AS first_sent_on, ${dayOf('d.decided_at')} AS approved_on, ${monthOf('d.decided_at')} AS month,
 			       j.customer_name AS customer, d.unit_kind AS kind, coalesce(t.name, 'Unassigned') AS technician, d.days
-			  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
+			  FROM (${jobRows(s, 'decided_at', " AND d.decision = 'approved'")}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
 	},
 	technicians: {
 		title: 'Labour efficiency and margin per technician',
 		basis:
-			"Approved jobs by the month of approval. A job's hours billed, revenue and gross profit are shared among the technicians who recorded hours on it, in proportion to their hours (each share rounded); a job with no hours recorded counts for its assigned technician. Efficiency = hours billed ÷ hours spent, on jobs with hours recorded.",
+			"Approved jobs by the month of approval. A job's hours billed, revenue and gross profit are shared among the people who recorded hours on it, in proportion to their hours (each share rounded); a job with no hours recorded counts for its assigned technician. Efficiency = hours billed ÷ hours spent, on jobs with hours recorded.",
 		columns: [
 			{ key: 'technician', label: 'Technician', format: 'text' },
 			count('jobs', 'Jobs'),
@@ -381,42 +405,28 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			money('revenue', 'Revenue'),
 			money('grossProfit', 'Gross profit')
 		],
-		rows: (s) => `
-			WITH approved AS (
-				SELECT o.job_id, o.decided_at, o.technician_id, o.technician_hours, o.actual_hours, o.billed_hours, o.revenue,
-				       o.actual_gross_profit, o.minor_digits
-				  FROM job_outcomes o WHERE ${s.where} AND o.decision = 'approved' AND ${decidedIn}),
-			shares AS (
-				SELECT a.*, h.key::uuid AS person, h.value::numeric AS spent, h.value::numeric / a.actual_hours AS share
-				  FROM approved a CROSS JOIN LATERAL jsonb_each_text(a.technician_hours) h WHERE a.actual_hours > 0
-				UNION ALL
-				SELECT a.*, a.technician_id, 0, 1 FROM approved a WHERE a.actual_hours IS NULL OR a.actual_hours = 0)
-			SELECT s.job_id, s.decided_at, s.person AS technician_id, round(s.share, 4) AS share, s.spent AS hours_spent,
-			       CASE WHEN s.actual_hours > 0 THEN round(s.billed_hours * s.share, 2) ELSE 0 END AS hours_billed,
-			       round(s.revenue * s.share, s.minor_digits) AS revenue, round(s.actual_gross_profit * s.share, s.minor_digits) AS gross_profit
-			  FROM shares s${s.replacements.technician ? ' WHERE s.person = :technician' : ''}`,
-		aggregate: (rows) => `
-			SELECT d.technician_id AS "technicianId", coalesce(t.name, 'Unassigned') AS technician, count(*)::int AS jobs,
-			       sum(d.hours_billed) AS "hoursBilled", sum(d.hours_spent) AS "hoursSpent",
-			       round(sum(d.hours_billed) / nullif(sum(d.hours_spent), 0), 2) AS efficiency,
-			       sum(d.revenue) AS revenue, sum(d.gross_profit) AS "grossProfit", ${percent('sum(d.gross_profit)', 'sum(d.revenue)')} AS "marginPercent"
-			  FROM (${rows}) d ${TECH_JOIN}
-			 GROUP BY d.technician_id, t.name ORDER BY t.name NULLS LAST`,
-		totals: (rows) => `
-			SELECT count(DISTINCT d.job_id)::int AS jobs, coalesce(sum(d.hours_billed), 0) AS "hoursBilled", coalesce(sum(d.hours_spent), 0) AS "hoursSpent",
-			       round(sum(d.hours_billed) / nullif(sum(d.hours_spent), 0), 2) AS efficiency,
-			       coalesce(sum(d.revenue), 0) AS revenue, coalesce(sum(d.gross_profit), 0) AS "grossProfit",
-			       ${percent('sum(d.gross_profit)', 'sum(d.revenue)')} AS "marginPercent"
-			  FROM (${rows}) d`,
-		csv: (rows) => `
+		aggregate: (s) => `
+			SELECT c.technician_id AS "technicianId", coalesce(t.name, 'Unassigned') AS technician, sum(c.jobs)::int AS jobs,
+			       sum(c.hours_billed) AS "hoursBilled", sum(c.hours_spent) AS "hoursSpent",
+			       round(sum(c.hours_billed) / nullif(sum(c.hours_spent), 0), 2) AS efficiency,
+			       sum(c.revenue) AS revenue, sum(c.gross_profit) AS "grossProfit", ${percent('sum(c.gross_profit)', 'sum(c.revenue)')} AS "marginPercent"
+			  FROM (${technicianContributions(s)}) c LEFT JOIN users t ON t.id = c.technician_id AND t.shop_id = :shopId
+			 GROUP BY c.technician_id, t.name ORDER BY t.name NULLS LAST`,
+		totals: (s) => `
+			SELECT coalesce(sum(c.hours_billed), 0) AS "hoursBilled", coalesce(sum(c.hours_spent), 0) AS "hoursSpent",
+			       round(sum(c.hours_billed) / nullif(sum(c.hours_spent), 0), 2) AS efficiency,
+			       coalesce(sum(c.revenue), 0) AS revenue, coalesce(sum(c.gross_profit), 0) AS "grossProfit",
+			       ${percent('sum(c.gross_profit)', 'sum(c.revenue)')} AS "marginPercent"
+			  FROM (${technicianContributions(s)}) c`,
+		csv: (s) => `
 			SELECT j.number AS job, ${dayOf('d.decided_at')} AS approved_on, coalesce(t.name, 'Unassigned') AS technician, d.share,
 			       d.hours_billed AS "hoursBilled", d.hours_spent AS "hoursSpent", d.revenue, d.gross_profit AS "grossProfit"
-			  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number, t.name`
+			  FROM (SELECT * FROM report_technician_rows r WHERE r.shop_id = :shopId AND ${inPeriod('r.decided_at')}${s.filters('r')}) d
+			  ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number, t.name`
 	},
 	'margin-lost': {
 		title: 'Biggest jobs by margin lost',
-		basis:
-			'Approved jobs by the month of approval with actuals recorded. Margin lost = gross profit as quoted − gross profit after actuals (more hours than billed at the labour cost rate, parts beyond the quote); negative when the job beat its quote. The chart shows the largest losses.',
+		basis: `Approved jobs by the month of approval with actuals recorded. Margin lost = gross profit as quoted − gross profit after actuals (hours spent at the labour cost rate, parts beyond the quote); negative when a job beat its quote. The chart shows the ${TOP_MARGIN_LOST} largest losses; the totals net out the gains.`,
 		columns: [
 			count('job', 'Job'),
 			{ key: 'customer', label: 'Customer', format: 'text' },
@@ -434,55 +444,23 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			money('grossProfit', 'Gross profit after actuals'),
 			money('marginLost', 'Margin lost')
 		],
-		rows: (s) => `${APPROVED_JOB_ROWS(s)} AND (o.actual_hours IS NOT NULL OR o.extra_parts_cost <> 0)`,
-		limit: TOP_MARGIN_LOST,
-		aggregate: (rows) => `
+		// Walks the losses from the largest down (job_outcomes_lost_idx) and stops at the limit.
+		aggregate: (s) => `
 			SELECT j.number AS job, j.id AS "jobId", j.customer_name AS customer, coalesce(t.name, 'Unassigned') AS technician,
 			       d.quoted_profit AS "quotedProfit", d.gross_profit AS "grossProfit", d.margin_lost AS "marginLost"
-			  FROM (SELECT * FROM (${rows}) r WHERE r.margin_lost > 0 ORDER BY r.margin_lost DESC, r.job_number LIMIT ${TOP_MARGIN_LOST}) d
+			  FROM (SELECT * FROM report_job_rows r
+			         WHERE r.shop_id = :shopId AND r.decision = 'approved' AND r.margin_lost > 0 AND ${inPeriod('r.decided_at')}${s.filters('r')}
+			         ORDER BY r.margin_lost DESC, r.job_number LIMIT ${TOP_MARGIN_LOST}) d
 			  ${JOB_LABELS} ${TECH_JOIN}
 			 ORDER BY d.margin_lost DESC, d.job_number`,
-		totals: (rows) => `
-			SELECT count(*)::int AS jobs, count(*) FILTER (WHERE d.margin_lost > 0)::int AS "jobsLosing",
-			       coalesce(sum(d.quoted_profit), 0) AS "quotedProfit", coalesce(sum(d.gross_profit), 0) AS "grossProfit",
-			       coalesce(sum(d.margin_lost), 0) AS "marginLost"
-			  FROM (${rows}) d`,
-		csv: (rows) => `
+		totals: (s) => overall(s, LOST_TOTALS),
+		csv: (s) => `
 			SELECT ${JOB_CSV_HEAD}, d.billed_hours, d.actual_hours, d.extra_parts_cost, d.quoted_profit AS "quotedProfit",
 			       d.gross_profit AS "grossProfit", d.margin_lost AS "marginLost"
-			  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.margin_lost DESC, j.number`
+			  FROM (${jobRows(s, 'decided_at', " AND d.decision = 'approved' AND d.has_actuals")}) d ${JOB_LABELS} ${TECH_JOIN}
+			 ORDER BY d.margin_lost DESC, j.number`
 	}
 };
-
-const outcomeCounts = `count(*) FILTER (WHERE d.outcome = 'repaired')::int AS repaired,
-	count(*) FILTER (WHERE d.outcome = 'replaced')::int AS replaced,
-	count(*) FILTER (WHERE d.outcome = 'declined')::int AS declined`;
-
-function outcomeRows(s: Scope): string {
-	return `
-		SELECT o.job_id, o.decided_at, ${monthOf('o.decided_at')} AS month, o.unit_kind, o.technician_id, o.outcome, o.option_label
-		  FROM job_outcomes o WHERE ${s.where} AND o.decided_at IS NOT NULL AND ${decidedIn}`;
-}
-
-function outcomeCsvColumns(): Column[] {
-	return [
-		count('job', 'Job'),
-		{ key: 'decided_on', label: 'Answered on', format: 'date' },
-		{ key: 'month', label: 'Month', format: 'month' },
-		{ key: 'customer', label: 'Customer', format: 'text' },
-		{ key: 'kind', label: 'Kind', format: 'text' },
-		{ key: 'technician', label: 'Technician', format: 'text' },
-		{ key: 'outcome', label: 'Outcome', format: 'text' },
-		{ key: 'option', label: 'Option approved', format: 'text' }
-	];
-}
-
-function outcomeCsv(rows: string): string {
-	return `
-		SELECT j.number AS job, ${dayOf('d.decided_at')} AS decided_on, d.month, j.customer_name AS customer, d.unit_kind AS kind,
-		       coalesce(t.name, 'Unassigned') AS technician, d.outcome, d.option_label AS option
-		  FROM (${rows}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`;
-}
 
 // ---------------------------------------------------------------------------------------------
 
@@ -507,11 +485,10 @@ function select<T extends object>(sql: string, replacements: Record<string, unkn
 /** One report's aggregated rows and totals for the shop and filters. */
 export async function run(shopId: string, name: ReportName, filters: Filters): Promise<ReportResult> {
 	const definition = DEFINITIONS[name];
-	const s = scope(shopId, filters, { byAssignedTechnician: name !== 'technicians' });
-	const rows = definition.rows(s);
+	const s = scope(shopId, filters);
 	const [aggregated, [totals], currency] = await Promise.all([
-		select<Record<string, string | number | null>>(definition.aggregate(rows), s.replacements),
-		select<Record<string, string | number | null>>(definition.totals(rows), s.replacements),
+		select<Record<string, string | number | null>>(definition.aggregate(s), s.replacements),
+		select<Record<string, string | number | null>>(definition.totals(s), s.replacements),
 		currencyOf(shopId)
 	]);
 	if (name === 'outcomes-by-kind') for (const row of aggregated) row.kind = UNIT_KIND_LABELS[row.kind as UnitKind] ?? row.kind;
@@ -521,8 +498,8 @@ export async function run(shopId: string, name: ReportName, filters: Filters): P
 /** The rows behind a report, labelled, as CSV lines (header first). */
 export async function csvRows(shopId: string, name: ReportName, filters: Filters): Promise<{ columns: Column[]; rows: Record<string, unknown>[] }> {
 	const definition = DEFINITIONS[name];
-	const s = scope(shopId, filters, { byAssignedTechnician: name !== 'technicians' });
-	const rows = await select<Record<string, unknown>>(definition.csv(definition.rows(s)), s.replacements);
+	const s = scope(shopId, filters);
+	const rows = await select<Record<string, unknown>>(definition.csv(s), s.replacements);
 	return { columns: definition.csvColumns, rows };
 }
 

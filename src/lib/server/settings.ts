@@ -1,5 +1,6 @@
 import type { Transaction } from 'sequelize';
 import { z } from 'zod';
+import { plainNumber } from './validators';
 import * as currencyCodes from 'currency-codes';
 import { decimalField, MAX_MONEY } from '../pricing/fields';
 import { Dec, HUNDRED, currencyDigits, isKnownCurrency, type Decimal } from '../pricing/money';
@@ -48,11 +49,14 @@ export const DEFAULT_TECHNICIANS_SEE_COSTS = true;
 export const DEFAULT_FEES: Record<FeeName, string> = { diagnostic: '85.00', disposal: '12.00', pickup: '45.00' };
 
 const feeField = (what: string) => decimalField({ min: 0, max: MAX_MONEY, maxDecimals: 4, what });
-const validityField = z.coerce
-	.number({ error: 'Enter the number of days a quote stays valid.' })
-	.int('Enter whole days.')
-	.min(1, 'A quote stays valid for at least 1 day.')
-	.max(365, 'Keep quote validity to 365 days or fewer.');
+const validityField = z.preprocess(
+	plainNumber,
+	z.coerce
+		.number({ error: 'Enter the number of days a quote stays valid.' })
+		.int('Enter whole days.')
+		.min(1, 'A quote stays valid for at least 1 day.')
+		.max(365, 'Keep quote validity to 365 days or fewer.')
+);
 
 const storedExtrasSchema = {
 	quoteValidityDays: validityField,

@@ -5,10 +5,10 @@ import * as audit from './audit';
 import { db } from './db';
 import { SpecItem, SpecSheet } from './db/models';
 import { UserError } from './errors';
-import { isUuid, optionalText, requiredText } from './validators';
+import { isUuid, optionalText, plainNumber, requiredText } from './validators';
 
 const measurement = z.preprocess(
-	(v) => (typeof v === 'string' && v.trim() === '' ? undefined : v),
+	(v) => (typeof v === 'string' && v.trim() === '' ? undefined : plainNumber(v)),
 	z.coerce
 		.number({ error: 'Enter a number.' })
 		.refine((n) => Number.isFinite(n) && Math.abs(n) < 1e9, 'Enter a sensible number.')
@@ -40,11 +40,16 @@ export type SpecSheetInput = z.infer<typeof specSheetSchema>;
 /** Turns the repeated fields of the sheet form (label, unit, min… once per row) into rows. */
 export function rowsFromForm(form: FormData): Record<string, unknown> {
 	const columns = ['label', 'unit', 'min', 'max', 'openAbove', 'shortBelow', 'running', 'source'] as const;
-	const values = Object.fromEntries(columns.map((c) => [c, form.getAll(c).map(String)]));
+	const values = Object.fromEntries(columns.map((c) => [c, form.getAll(c).map((v) => (typeof v === 'string' ? v : ''))]));
 	const items = values.label
 		.map((_, i) => Object.fromEntries(columns.map((c) => [c, values[c][i] ?? ''])))
 		.filter((row) => Object.entries(row).some(([k, v]) => k !== 'unit' && k !== 'running' && v.trim() !== ''));
-	return { name: form.get('name') ?? '', appliesTo: form.get('appliesTo') ?? '', notes: form.get('notes') ?? '', items };
+	// A file where text belongs is read as nothing typed (and must not be echoed back to the page).
+	const text = (key: string) => {
+		const value = form.get(key);
+		return typeof value === 'string' ? value : '';
+	};
+	return { name: text('name'), appliesTo: text('appliesTo'), notes: text('notes'), items };
 }
 
 interface Actor {

@@ -16,10 +16,16 @@ export const requiredText = (max: number, message: string) =>
 
 const blankToUndefined = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
 
+/**
+ * Form text must be a plain decimal ("12", "-0.5") before it becomes a number: "0x1F", "1e-400"
+ * and "Infinity" are refused (as NaN), never read as 31, 0 or infinity.
+ */
+export const plainNumber = (v: unknown) => (typeof v === 'string' && v.trim() !== '' && !/^\s*[-+]?\d+(\.\d+)?\s*$/.test(v) ? Number.NaN : v);
+
 /** A whole number in [min, max], or null when left blank. */
 export const optionalInt = (min: number, max: number, label: string) =>
 	z.preprocess(
-		blankToUndefined,
+		(v) => plainNumber(blankToUndefined(v)),
 		z.coerce
 			.number({ error: `${label} must be a whole number.` })
 			.int(`${label} must be a whole number.`)

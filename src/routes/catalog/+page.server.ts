@@ -11,6 +11,9 @@ const DONE: Record<string, string> = {
 	deleted: 'Deleted from the catalog.'
 };
 
+/** Only the catalog's own words: `?done=constructor` must not reach Object's prototype. */
+const doneMessage = (key: string | null) => (key !== null && Object.hasOwn(DONE, key) ? DONE[key] : null);
+
 export const load: PageServerLoad = async ({ url }) => {
 	const user = requireRole(STAFF);
 	const q = (url.searchParams.get('q') ?? '').trim().slice(0, 100);
@@ -28,7 +31,7 @@ export const load: PageServerLoad = async ({ url }) => {
 		showCost,
 		pageRows: catalog.PAGE_ROWS,
 		maxRows: catalog.MAX_IMPORT_ROWS,
-		done: DONE[url.searchParams.get('done') ?? ''] ?? null,
+		done: doneMessage(url.searchParams.get('done')),
 		parts: {
 			total: parts.total,
 			rows: parts.rows.map((r) => ({

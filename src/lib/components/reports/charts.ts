@@ -83,10 +83,14 @@ export const CHARTS: Record<string, ChartSpec> = {
 	},
 	'days-to-approval': {
 		x: 'month',
-		left: 'days',
+		left: 'count',
+		right: 'days',
 		series: [
-			{ key: 'averageDays', colour: COLOURS.copper, kind: 'line' },
-			{ key: 'medianDays', colour: COLOURS.moss, kind: 'line', dashed: true }
+			{ key: 'withinDay', colour: COLOURS.moss, kind: 'bar', stack: 'answers' },
+			{ key: 'oneToThree', colour: COLOURS.amber, kind: 'bar', stack: 'answers' },
+			{ key: 'threeToSeven', colour: COLOURS.copper, kind: 'bar', stack: 'answers' },
+			{ key: 'overWeek', colour: COLOURS.brick, kind: 'bar', stack: 'answers' },
+			{ key: 'averageDays', colour: COLOURS.ink, kind: 'line', right: true }
 		]
 	},
 	technicians: {

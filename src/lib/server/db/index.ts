@@ -26,10 +26,12 @@ export function db(): Sequelize {
 			logging: process.env.SQL_LOG === '1' ? console.log : false,
 			pool: { max: Number(process.env.DB_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 30_000 },
 			// A restarted database drops every pooled connection; retry the few errors that mean
-			// "connection lost" so requests after recovery succeed.
+			// "connection lost" so requests after recovery succeed. A statement on its own that lost a
+			// deadlock was rolled back whole and is safe to run again (inside a transaction the retry
+			// meets the aborted transaction and the error stands).
 			retry: {
 				max: 3,
-				match: [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/]
+				match: [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/, /deadlock detected/]
 			},
 			define: { underscored: true, timestamps: true }
 		});

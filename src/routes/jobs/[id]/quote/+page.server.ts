@@ -9,6 +9,7 @@ import { requireRole, type AuthUser } from '$lib/server/auth/guard';
 import * as catalog from '$lib/server/catalog';
 import { UserError } from '$lib/server/errors';
 import { parseForm } from '$lib/server/forms';
+import { plainNumber } from '$lib/server/validators';
 import * as jobs from '$lib/server/jobs';
 import * as quotes from '$lib/server/quotes';
 import * as settings from '$lib/server/settings';
@@ -23,7 +24,7 @@ const SENDABLE = ['checked_in', 'diagnosing', 'quoted'];
 
 const saveSchema = z.object({
 	draft: z.string({ error: 'Send the quote as JSON.' }).max(512 * 1024, 'The quote is too large to save.'),
-	lockVersion: z.coerce.number({ error: 'Reload the page and try again.' }).int().min(0)
+	lockVersion: z.preprocess(plainNumber, z.coerce.number({ error: 'Reload the page and try again.' }).int().min(0).max(2_147_483_647))
 });
 
 /** The job of the caller's shop, or 404: another shop's job id is simply not found. */
@@ -60,7 +61,6 @@ export const load: PageServerLoad = async ({ params }) => {
 		labourRate: pricing.labourRate.toFixed(currencyDigits(pricing.currency)),
 		seesCosts,
 		targetMarginPercent: pricing.targetMarginPercent.toString(),
-		canEdit: EDITORS.includes(user.role),
 		canSend: SENDERS.includes(user.role),
 		canRevoke: REVOKERS.includes(user.role),
 		sendBlocked: approval
