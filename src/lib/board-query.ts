@@ -23,7 +23,8 @@ const pick = <T extends string>(value: string | null, allowed: readonly T[], fal
 	allowed.includes(value as T) ? (value as T) : fallback;
 
 const wholeNumber = (value: string | null, min: number, max: number, fallback: number) => {
-	const n = Number(value);
+	// Digits only: "0x1F" or "1e3" is not a page number.
+	const n = value !== null && /^\d{1,9}$/.test(value) ? Number(value) : Number.NaN;
 	return Number.isInteger(n) && n >= min && n <= max ? n : fallback;
 };
 

@@ -25,6 +25,7 @@ const matrix: Record<string, Record<Who, Expect>> = {
 	'/dev/mailbox': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' },
 	'/payments': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
 	'/payments/payments.csv': { anonymous: 'unauthorized', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
+	'/reports': { anonymous: 'signin', owner: 'ok', manager: 'ok', writer: 'forbidden', technician: 'forbidden' },
 	'/api/health': { anonymous: 'ok', owner: 'ok', manager: 'ok', writer: 'ok', technician: 'ok' }
 };
 

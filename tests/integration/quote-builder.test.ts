@@ -163,6 +163,11 @@ describe('saving with a lock version', () => {
 		expect(reply.data.issues.map((i: { path: string }) => i.path)).toContain('options.0.lines.1.quantity');
 		const notJson = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: '{"unit":', lockVersion: String(start) });
 		expect(notJson.actionStatus).toBe(400);
+		const withNul = alternatorDraft();
+		withNul.options[0].label = 'Rebuild\u0000';
+		const nul = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(withNul), lockVersion: String(start) });
+		expect(nul.actionStatus).toBe(400);
+		expect(nul.data.message).toContain('NUL');
 		expect(await lockOf(job.id)).toBe(start);
 	});
 });
@@ -193,7 +198,7 @@ describe('versions', () => {
 		const again = await action(as.writer, `/jobs/${job.id}/quote?/send`);
 		expect(again.data.version).toBe(1);
 
-		draft.options[0].lines[1] = { ...draft.options[0].lines[1], quantity: '2' };
+		(draft.options[0].lines[1] as Record<string, unknown>).quantity = '2';
 		const edited = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
 		expect(edited.type).toBe('success');
 		const second = await action(as.technician, `/jobs/${job.id}/quote?/send`);

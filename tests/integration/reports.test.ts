@@ -238,7 +238,7 @@ describe('report figures on the fixed history (hand-computed in the comments of 
 		const inverters = await report(manager, 'revenue', `${RANGE}&kind=inverter`);
 		expect(inverters.totals).toMatchObject({ jobs: 1, revenue: '700.00', other: '700.00' });
 		const managersJobs = await report(manager, 'revenue', `${RANGE}&technician=${shop.staff.manager.id}`);
-		expect(managersJobs.totals).toMatchObject({ jobs: 0, revenue: '0' });
+		expect(managersJobs.totals).toMatchObject({ jobs: 0, revenue: '0.00' });
 		const managersHours = await report(manager, 'technicians', `${RANGE}&technician=${shop.staff.manager.id}`);
 		expect(managersHours.rows.map((row) => row.technicianId)).toEqual([shop.staff.manager.id]);
 		const april = await report(manager, 'margin', 'from=2026-04-01&to=2026-05-31');
@@ -341,7 +341,7 @@ describe('who may see reports', () => {
 	it("another shop's manager sees none of this shop's figures", async () => {
 		const elsewhere = await signedIn(other.staff.manager.email, other.staff.manager.password);
 		const r = await report(elsewhere, 'revenue');
-		expect(r.totals).toMatchObject({ jobs: 0, revenue: '0' });
+		expect(r.totals).toMatchObject({ jobs: 0, revenue: '0.00' });
 		const technicians = await report(elsewhere, 'technicians', `${RANGE}&technician=${shop.staff.technician.id}`);
 		expect(technicians.rows).toEqual([]);
 		const rows = parse((await elsewhere.get(`/reports/margin.csv?${RANGE}`)).text, { columns: true, bom: true });

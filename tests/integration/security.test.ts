@@ -254,7 +254,7 @@ describe('keep-alive connections after an early refusal', () => {
 	}
 
 	const big = 'x=' + 'a'.repeat(400_000);
-	const cases = () => [
+	const cases = (): { what: string; method: string; path: string; headers: Record<string, string>; body: string; status: number }[] => [
 		{ what: 'an anonymous JSON post (401)', method: 'POST', path: '/api/pricing/evaluate', headers: { 'content-type': 'application/json' }, body: big, status: 401 },
 		{ what: 'a form post to a missing job (404)', method: 'POST', path: `/jobs/${crypto.randomUUID()}/quote?/save`, headers: { 'content-type': 'application/x-www-form-urlencoded', origin: BASE_URL, cookie: owner.cookieHeader, accept: 'text/html' }, body: big, status: 404 },
 		{ what: 'a form post above the role (403)', method: 'POST', path: '/team?/invite', headers: { 'content-type': 'application/x-www-form-urlencoded', origin: BASE_URL, cookie: technicianCookie, accept: 'text/html' }, body: big, status: 403 },

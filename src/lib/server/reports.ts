@@ -1,6 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
 import { UNIT_KINDS, UNIT_KIND_LABELS, type UnitKind } from '../domain';
+import { Dec, currencyDigits } from '../pricing/money';
 import { db } from './db';
 import { Shop } from './db/models';
 
@@ -43,7 +44,14 @@ const MAX_RANGE_DAYS = 3660;
 const TOP_MARGIN_LOST = 15;
 
 const isoDate = (what: string) =>
-	z.preprocess((v) => (v === '' ? undefined : v), z.iso.date({ error: `Enter the ${what} date as YYYY-MM-DD.` }).optional());
+	z.preprocess(
+		(v) => (v === '' ? undefined : v),
+		z.iso
+			.date({ error: `Enter the ${what} date as YYYY-MM-DD.` })
+			// Past year 9999 a date no longer fits YYYY-MM-DD (nor PostgreSQL's date arithmetic here).
+			.refine((v) => v >= '1900-01-01' && v <= '2999-12-31', `Enter the ${what} date between 1900 and 2999.`)
+			.optional()
+	);
 
 const blankToNull = (v: unknown) => (v === '' || v === undefined ? null : v);
 
@@ -492,6 +500,12 @@ export async function run(shopId: string, name: ReportName, filters: Filters): P
 		currencyOf(shopId)
 	]);
 	if (name === 'outcomes-by-kind') for (const row of aggregated) row.kind = UNIT_KIND_LABELS[row.kind as UnitKind] ?? row.kind;
+	// Money to the currency's minor unit, so an empty month reads 0.00 like the rest.
+	const digits = currencyDigits(currency);
+	const money = definition.columns.filter((c) => c.format === 'money').map((c) => c.key);
+	for (const row of [...aggregated, totals]) {
+		for (const key of money) if (typeof row[key] === 'string') row[key] = new Dec(row[key] as string).toFixed(digits);
+	}
 	return { name, title: definition.title, basis: definition.basis, currency, filters, columns: definition.columns, rows: aggregated, totals };
 }
 

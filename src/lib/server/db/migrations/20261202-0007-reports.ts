@@ -386,10 +386,10 @@ export const down: Migration = async ({ context: sequelize }) => {
 		DROP TRIGGER job_outcomes_approvals_gone ON approvals;
 		DROP TRIGGER job_outcomes_job_moved ON jobs;
 		DROP TRIGGER job_outcomes_unit_kind ON units;
-		DROP FUNCTION report_refresh_by_quote(), report_refresh_by_job(), report_refresh_job_row(), report_refresh_unit_row();
-		DROP FUNCTION report_refresh_jobs(uuid[]), report_upsert_outcomes(uuid[]), report_rollup(uuid[], date[]);
 		DROP VIEW report_contributions, report_technician_rows, report_job_rows;
 		DROP TABLE report_technician_months, report_technician_days, report_months, report_days, job_outcomes, job_extra_parts, job_labour;
+		DROP FUNCTION report_refresh_by_quote(), report_refresh_by_job(), report_refresh_job_row(), report_refresh_unit_row();
+		DROP FUNCTION report_refresh_jobs(uuid[]), report_upsert_outcomes(uuid[]), report_rollup(uuid[], date[]);
 		DROP FUNCTION report_month(timestamptz), report_day(timestamptz);
 	`);
 };

@@ -11,6 +11,7 @@ import { UserError } from '$lib/server/errors';
 import { parseForm } from '$lib/server/forms';
 import { plainNumber } from '$lib/server/validators';
 import * as jobs from '$lib/server/jobs';
+import * as quoteMail from '$lib/server/quote-mail';
 import * as quotes from '$lib/server/quotes';
 import * as settings from '$lib/server/settings';
 import { catalogPartIds, maskDraft, partView, unmaskDraft, type DraftShape } from './masking';
@@ -24,7 +25,7 @@ const SENDABLE = ['checked_in', 'diagnosing', 'quoted'];
 
 const saveSchema = z.object({
 	draft: z.string({ error: 'Send the quote as JSON.' }).max(512 * 1024, 'The quote is too large to save.'),
-	lockVersion: z.preprocess(plainNumber, z.coerce.number({ error: 'Reload the page and try again.' }).int().min(0).max(2_147_483_647))
+	lockVersion: z.preprocess(plainNumber, z.coerce.number({ error: 'Reload the page and try again.' }).int().min(0).max(2_147_483_646))
 });
 
 /** The job of the caller's shop, or 404: another shop's job id is simply not found. */
@@ -104,6 +105,10 @@ export const actions: Actions = {
 		} catch {
 			return fail(400, { action: 'save', message: 'The quote could not be read. Reload the page and try again.', issues: [] });
 		}
+		// PostgreSQL's jsonb cannot hold the NUL character.
+		if (JSON.stringify(draft).includes('\\u0000')) {
+			return fail(400, { action: 'save', message: 'Nothing was saved: the quote contains a NUL character. Remove it and save again.', issues: [] });
+		}
 		const shop = await settings.get(user.shopId);
 		if (!settings.seesCosts(user.role, shop)) {
 			const { quote } = await quotes.forJob(user.shopId, job.id);
@@ -129,12 +134,16 @@ export const actions: Actions = {
 		const job = await jobOf(user, params.id);
 		try {
 			const sent = await quotes.send(user, job.id);
+			const link = `${url.origin}/q/${sent.token}`;
+			const mail = await quoteMail.quoteSent(user.shopId, job.id, sent.version, link);
 			return {
 				action: 'send',
+				mailed: mail.queued,
+				mailNote: mail.reason ?? null,
 				version: sent.version.number,
 				contentHash: sent.version.contentHash,
 				validUntil: sent.version.validUntil,
-				link: `${url.origin}/q/${sent.token}`
+				link
 			};
 		} catch (e) {
 			if (e instanceof quotes.DraftInvalid) return fail(400, { action: 'send', message: `Not sent. ${e.message}` });

@@ -65,7 +65,14 @@ export function tierPrice(unitCost: unknown, pricing: PricingSettings): string |
 	}
 }
 
-const samePrice = (a: unknown, b: string | null) => b !== null && (typeof a === 'string' || typeof a === 'number') && new Dec(a).eq(b);
+function samePrice(a: unknown, b: string | null): boolean {
+	if (b === null || (typeof a !== 'string' && typeof a !== 'number')) return false;
+	try {
+		return new Dec(a).eq(b);
+	} catch {
+		return false;
+	}
+}
 
 /** The draft without cost inputs: parts are priced by their sell price each, other costs are zero or left out. */
 export function maskDraft(draft: DraftShape, pricing: PricingSettings): DraftShape {

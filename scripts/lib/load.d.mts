@@ -1,0 +1,29 @@
+// Types for load.mjs (the mixed load run of `npm run bench:load` and tests/integration/load.test.ts).
+export interface LoadRow {
+	route: string;
+	requests: number;
+	rps: number;
+	p50: number;
+	p99: number;
+	errors: number;
+}
+
+export interface CustomerResult {
+	token: string;
+	/** The statuses of the two approval taps. */
+	taps: number[];
+	/** The page read afterwards says the estimate was approved. */
+	confirmed: boolean;
+}
+
+export function loadRun(options: {
+	origins: string[];
+	staffCookie: string;
+	tokens: string[];
+	seconds: number;
+	connections: number;
+	pricingBody: string;
+	boardPaths?: string[];
+}): Promise<{ rows: LoadRow[]; customers: CustomerResult[] }>;
+
+export function printLoadTable(rows: LoadRow[]): void;
