@@ -47,9 +47,19 @@ function readableOr400(request: Request): void {
 		error(400, `The ${what} could not be read. Send it again from the page.`);
 	};
 	Object.defineProperties(request, {
-		formData: { value: () => formData().catch((e) => refuse(e, 'form')) },
+		formData: { value: () => formData().then(withoutNul, (e) => refuse(e, 'form')) },
 		json: { value: () => readJson().catch((e) => refuse(e, 'JSON body')) }
 	});
+}
+
+/** PostgreSQL stores no NUL character (in text or JSON): a form holding one is refused whole. */
+function withoutNul(form: FormData): FormData {
+	for (const [, value] of form) {
+		if (typeof value === 'string' && value.includes('\u0000')) {
+			error(400, 'The form holds a character that cannot be saved (a NUL). Remove it and send the form again.');
+		}
+	}
+	return form;
 }
 
 async function discard(body: ReadableStream<Uint8Array>): Promise<void> {

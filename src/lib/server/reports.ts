@@ -178,11 +178,14 @@ const technicianContributions = (s: Scope) => `
 	  FROM report_technician_days d
 	 WHERE d.shop_id = :shopId AND ${edgeDays('d.day')}${s.filters('d')}`;
 
-/** Monthly rows: `measures` are aggregate expressions over the contributions `c`. */
+/**
+ * Monthly rows and, last, the whole period's row (month null) in one pass: `measures` are
+ * aggregate expressions over the contributions `c`.
+ */
 const byMonth = (s: Scope, measures: string) => `
 	SELECT to_char(m.month, 'YYYY-MM') AS month, ${measures}
 	  FROM (${MONTHS}) m LEFT JOIN (${contributions(s)}) c ON c.month = m.month
-	 GROUP BY m.month ORDER BY m.month`;
+	 GROUP BY GROUPING SETS ((m.month), ()) ORDER BY m.month NULLS LAST`;
 const overall = (s: Scope, measures: string) => `SELECT ${measures} FROM (${contributions(s)}) c`;
 
 /** The labelled rows behind a report, for its CSV. */
@@ -200,7 +203,8 @@ interface Definition {
 	columns: Column[];
 	csvColumns: Column[];
 	aggregate(s: Scope): string;
-	totals(s: Scope): string;
+	/** The whole period's row; without it, the aggregate's last row (see byMonth) is the total. */
+	totals?(s: Scope): string;
 	csv(s: Scope): string;
 }
 
@@ -264,7 +268,6 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 		],
 		csvColumns: [...JOB_CSV_HEAD_COLUMNS, { key: 'option', label: 'Option approved', format: 'text' }, money('parts', 'Parts'), money('labour', 'Labour'), money('other', 'Other'), money('revenue', 'Revenue')],
 		aggregate: (s) => byMonth(s, REVENUE),
-		totals: (s) => overall(s, REVENUE),
 		csv: (s) => `
 			SELECT ${JOB_CSV_HEAD}, d.option_label AS option, d.parts_sell AS parts, d.labour_sell AS labour, d.other_sell AS other, d.revenue
 			  FROM (${jobRows(s, 'decided_at', " AND d.decision = 'approved'")}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
@@ -299,7 +302,6 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			money('grossProfit', 'Gross profit')
 		],
 		aggregate: (s) => byMonth(s, MARGIN),
-		totals: (s) => overall(s, MARGIN),
 		csv: (s) => `
 			SELECT ${JOB_CSV_HEAD}, d.revenue, d.parts_sell, d.parts_cost, d.extra_parts_cost, d.parts_profit AS parts,
 			       d.labour_sell, d.billed_hours, d.actual_hours, d.actual_labour_cost AS labour_cost, d.labour_profit AS labour,
@@ -330,7 +332,6 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			{ key: 'decided_on', label: 'Answered on', format: 'date' }
 		],
 		aggregate: (s) => byMonth(s, APPROVAL),
-		totals: (s) => overall(s, APPROVAL),
 		csv: (s) => `
 			SELECT j.number AS job, ${dayOf('d.first_sent_at')} AS first_sent_on, ${monthOf('d.first_sent_at')} AS month, j.customer_name AS customer,
 			       d.unit_kind AS kind, coalesce(t.name, 'Unassigned') AS technician, d.versions_sent AS versions,
@@ -343,7 +344,6 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 		columns: [{ key: 'month', label: 'Month', format: 'month' }, count('repaired', 'Repaired'), count('replaced', 'Replaced'), count('declined', 'Declined')],
 		csvColumns: outcomeCsvColumns(),
 		aggregate: (s) => byMonth(s, OUTCOMES),
-		totals: (s) => overall(s, OUTCOMES),
 		csv: outcomeCsv
 	},
 	'outcomes-by-kind': {
@@ -383,7 +383,6 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			{ key: 'days', label: 'Days to approval', format: 'days' }
 		],
 		aggregate: (s) => byMonth(s, DAYS),
-		totals: (s) => overall(s, DAYS),
 		csv: (s) => `
 			SELECT j.number AS job, ${dayOf('d.first_sent_at')} AS first_sent_on, ${dayOf('d.decided_at')} AS approved_on, ${monthOf('d.decided_at')} AS month,
 			       j.customer_name AS customer, d.unit_kind AS kind, coalesce(t.name, 'Unassigned') AS technician, d.days
@@ -494,11 +493,18 @@ function select<T extends object>(sql: string, replacements: Record<string, unkn
 export async function run(shopId: string, name: ReportName, filters: Filters): Promise<ReportResult> {
 	const definition = DEFINITIONS[name];
 	const s = scope(shopId, filters);
-	const [aggregated, [totals], currency] = await Promise.all([
-		select<Record<string, string | number | null>>(definition.aggregate(s), s.replacements),
-		select<Record<string, string | number | null>>(definition.totals(s), s.replacements),
+	type Row = Record<string, string | number | null>;
+	const [aggregated, separate, currency] = await Promise.all([
+		select<Row>(definition.aggregate(s), s.replacements),
+		definition.totals ? select<Row>(definition.totals(s), s.replacements) : Promise.resolve(null),
 		currencyOf(shopId)
 	]);
+	let totals: Row;
+	if (separate) totals = separate[0];
+	else {
+		const { month: _whole, ...rest } = aggregated.pop()!;
+		totals = rest;
+	}
 	if (name === 'outcomes-by-kind') for (const row of aggregated) row.kind = UNIT_KIND_LABELS[row.kind as UnitKind] ?? row.kind;
 	// Money to the currency's minor unit, so an empty month reads 0.00 like the rest.
 	const digits = currencyDigits(currency);
