@@ -5,7 +5,10 @@ export interface LoadRow {
 	rps: number;
 	p50: number;
 	p99: number;
+	/** Answers with a 4xx/5xx status, time-outs and lost connections. */
 	errors: number;
+	/** The errors by kind, e.g. "3× timeout, 1× 503". */
+	errorKinds: string;
 }
 
 export interface CustomerResult {
@@ -24,6 +27,8 @@ export function loadRun(options: {
 	connections: number;
 	pricingBody: string;
 	boardPaths?: string[];
+	/** autocannon's per-request timeout (default 10 s); a request past it counts as an error. */
+	timeoutSeconds?: number;
 }): Promise<{ rows: LoadRow[]; customers: CustomerResult[] }>;
 
 export function printLoadTable(rows: LoadRow[]): void;

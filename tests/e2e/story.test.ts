@@ -54,11 +54,11 @@ const story = {
 };
 
 /** A screenshot of the step; the first visit to each named page or state is also checked with axe. */
-async function step(page: Page, name: string, options: { axe?: string; fullPage?: boolean } = {}) {
+async function step(page: Page, name: string, options: { axe?: string } = {}) {
 	await page.waitForLoadState('networkidle');
 	shotNumber++;
 	const file = path.join(SHOTS, `${String(shotNumber).padStart(2, '0')}-${name}.png`);
-	await page.screenshot({ path: file, fullPage: options.fullPage ?? true });
+	await page.screenshot({ path: file, fullPage: true });
 	const key = options.axe ?? name;
 	if (!audited.has(key)) {
 		audited.add(key);
@@ -68,31 +68,37 @@ async function step(page: Page, name: string, options: { axe?: string; fullPage?
 	expect(await page.evaluate(() => document.documentElement.scrollWidth), `${name} fits ${width} px`).toBeLessThanOrEqual(width);
 }
 
-/** A compressed image for the user guide, of the page or of one part of it. */
-async function guideImage(page: Page, file: string, what?: ReturnType<Page['locator']>) {
+/** A compressed image for the user guide: the viewport, one element, or a region of the viewport. */
+async function guideImage(page: Page, file: string, what?: ReturnType<Page['locator']> | { x: number; y: number; width: number; height: number }) {
 	const target = path.join(SHOTS, 'guide', file);
 	const options = { path: target, type: 'jpeg' as const, quality: 70 };
-	if (what) await what.screenshot(options);
-	else await page.screenshot({ ...options, fullPage: false });
+	// A picture of one part leaves out the bar that sticks to the bottom of the screen.
+	const unstick = '.sticky { position: static !important; }';
+	if (what && 'screenshot' in what) await what.screenshot({ ...options, style: unstick });
+	else if (what) await page.screenshot({ ...options, clip: what, style: unstick });
+	else await page.screenshot(options);
 	if (process.env.MENDWISE_GUIDE_IMAGES === '1') {
 		fs.mkdirSync(GUIDE_IMAGES, { recursive: true });
 		fs.copyFileSync(target, path.join(GUIDE_IMAGES, file));
 	}
 }
 
+/** Errors each page's console reported; a step ends by expecting none. */
+const consoleProblems = new WeakMap<Page, string[]>();
+
 async function newPage(viewport: { width: number; height: number }): Promise<Page> {
 	const context: BrowserContext = await openBrowser(viewport);
 	const page = await context.newPage();
 	const problems: string[] = [];
+	consoleProblems.set(page, problems);
 	page.on('console', (m) => {
 		// The local payment fake's page has no icon; that 404 is not the shop's.
 		if (m.type() === 'error' && !m.location().url.endsWith('/favicon.ico')) problems.push(`${m.text()} (${m.location().url})`);
 	});
 	page.on('pageerror', (e) => problems.push(e.message));
-	(page as Page & { problems?: string[] }).problems = problems;
 	return page;
 }
-const problemsOf = (page: Page) => (page as Page & { problems?: string[] }).problems ?? [];
+const problemsOf = (page: Page) => consoleProblems.get(page) ?? [];
 
 /** Presses Tab until the focused element matches `selector`; fails after `max` presses. */
 async function tabTo(page: Page, selector: string, max = 80): Promise<number> {
@@ -113,8 +119,6 @@ const focusedIsVisible = (page: Page) =>
 		return rect.width > 0 && rect.height > 0 && (ring || style.boxShadow !== 'none');
 	});
 
-const overflowFree = async (page: Page) => expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(page.viewportSize()!.width);
-
 /** A bench photo of our own making: the rotor's slip rings with the brush holder lifted off. */
 async function benchPhoto(): Promise<Buffer> {
 	const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="1200" height="900">
@@ -127,14 +131,6 @@ async function benchPhoto(): Promise<Buffer> {
 		<rect x="950" y="200" width="120" height="90" rx="10" fill="#1d1f22" stroke="#555" stroke-width="4"/>
 	</svg>`;
 	return sharp(Buffer.from(svg)).jpeg({ quality: 80 }).toBuffer();
-}
-
-async function signIn(page: Page, who: { email: string; password: string }) {
-	await page.goto(`${BASE_URL}/signin`);
-	await page.getByLabel('E-mail').fill(who.email);
-	await page.getByLabel('Password').fill(who.password);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL('**/home');
 }
 
 describe('the three stories, end to end in a new shop', () => {
@@ -351,8 +347,18 @@ describe('the three stories, end to end in a new shop', () => {
 		await bench.getByRole('checkbox', { name: 'Show the customer photo 1' }).check();
 		await bench.getByText('The customer will see this photo.').waitFor();
 		await step(bench, 'bench-readings-phone', { axe: 'job (technician, phone)' });
-		await bench.locator('section[aria-labelledby="bench-heading"]').scrollIntoViewIfNeeded();
-		await guideImage(bench, 'technician-readings-phone.jpg', bench.locator('section[aria-labelledby="bench-heading"] table'));
+		// The recorded readings, across the card's full width.
+		const card = bench.locator('section[aria-labelledby="bench-heading"]');
+		const recorded = card.getByRole('heading', { name: 'Recorded' });
+		await recorded.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+		await bench.evaluate(() => window.scrollBy(0, -12));
+		const [box, top, bottom] = [await card.boundingBox(), await recorded.boundingBox(), await card.locator('table').boundingBox()];
+		await guideImage(bench, 'technician-readings-phone.jpg', {
+			x: box!.x,
+			y: top!.y - 8,
+			width: box!.width,
+			height: bottom!.y + bottom!.height - top!.y + 16
+		});
 
 		// The estimate: a new alternator head against a new unit, at the bench.
 		await bench.getByRole('link', { name: 'Build the estimate' }).click();
@@ -435,7 +441,6 @@ describe('the three stories, end to end in a new shop', () => {
 		expect(chosen.kind).toBe('repair');
 
 		// Keyboard alone: Tab to the option, pick the repair with the arrow keys, type the name, tick, approve.
-		await phone.locator('body').click({ position: { x: 1, y: 1 } });
 		await phone.evaluate(() => (document.activeElement as HTMLElement | null)?.blur());
 		await tabTo(phone, 'input[type="radio"][name="optionIndex"]');
 		for (let moves = 0; moves < result.options.length; moves++) {

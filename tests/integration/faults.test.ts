@@ -112,7 +112,9 @@ describe('PostgreSQL restarts while requests are running', () => {
 			else await new Promise((r) => setTimeout(r, 50));
 			expect(Date.now() - restartAt).toBeLessThan(30_000);
 		}
-		await new Promise((r) => setTimeout(r, 4_000));
+		// Keep going until plenty of requests have been made after recovery (bounded in time).
+		const until = Date.now() + 30_000;
+		while (sent.filter((x) => x.startedAt >= recoveredAt).length < 40 && Date.now() < until) await new Promise((r) => setTimeout(r, 100));
 		running = false;
 		await Promise.all(workers);
 
@@ -167,9 +169,11 @@ describe('an app process killed in the middle of saving quotes', () => {
 				acknowledged.set(job.id, version + 1);
 			}
 		};
-		const chains = jobs.map(({ job }) => chain(job));
-		// Kill once the saves are well under way.
-		while ([...acknowledged.values()].reduce((a, b) => a + b, 0) < 24) await new Promise((r) => setTimeout(r, 10));
+		let ended = 0;
+		const chains = jobs.map(({ job }) => chain(job).finally(() => ended++));
+		// Kill once the saves are well under way (a chain that ended early has failed; its error shows below).
+		const until = Date.now() + 30_000;
+		while ([...acknowledged.values()].reduce((a, b) => a + b, 0) < 24 && ended === 0 && Date.now() < until) await new Promise((r) => setTimeout(r, 10));
 		killed = true;
 		victim.process.kill('SIGKILL');
 		await Promise.all(chains);
