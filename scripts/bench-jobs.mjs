@@ -22,7 +22,8 @@ try {
 		'/api/jobs?age=30&sort=technician',
 		'/api/jobs?age=stale&sort=changed&dir=asc',
 		'/api/jobs?sort=number&dir=asc&page=200',
-		'/api/jobs?sort=customer&dir=desc&page=2000&per=50'
+		'/api/jobs?sort=customer&dir=desc&page=2000&per=50',
+		'/api/jobs?sort=status&page=2000'
 	];
 	const rows = [];
 	for (const route of routes) {

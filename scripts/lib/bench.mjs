@@ -42,9 +42,13 @@ export async function benchServer({ extraEnv = {} } = {}) {
 
 const percentile = (sorted, p) => sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
 
-/** Runs one route at `connections` concurrent requests for `seconds`; exact p50/p95/p99. */
-export async function measure({ origin, cookie, path: route, connections, seconds, method = 'GET', body, headers = {} }) {
+/**
+ * Runs one route at `connections` concurrent requests for `seconds`; exact p50/p95/p99. A second
+ * of the same load first, not recorded, so compilation and fresh pool connections do not count.
+ */
+export async function measure({ origin, cookie, path: route, connections, seconds, method = 'GET', body, headers = {}, warmUp = 1 }) {
 	const { default: autocannon } = await import('autocannon');
+	if (warmUp > 0) await autocannon({ url: origin + route, connections, duration: warmUp, method, body, headers: { cookie, ...headers } });
 	const latencies = [];
 	let errors = 0;
 	let non2xx = 0;

@@ -1,6 +1,9 @@
 // The job board's filters, shared by the page (address bar) and the server (SQL).
 import { JOB_STATUSES, type JobStatus, type UnitKind } from './domain';
 
+/** With a search or age filter the board counts matching jobs exactly up to this many; beyond it, "more than". */
+export const COUNT_LIMIT = 200;
+
 export const SORT_KEYS = ['number', 'customer', 'unit', 'status', 'technician', 'promised', 'changed', 'opened'] as const;
 export type SortKey = (typeof SORT_KEYS)[number];
 
@@ -78,9 +81,14 @@ export interface BoardRow {
 
 export interface BoardPage {
 	rows: BoardRow[];
-	total: number;
+	/** Jobs matching every filter; null when more than the board counts (see `exact`). */
+	total: number | null;
+	/** False when a search or age filter matched more jobs than are counted: `counts` then cover only the first ones found. */
+	exact: boolean;
 	counts: Record<JobStatus, number>;
 	query: BoardQuery;
-	pages: number;
+	/** Null when the total is not known; `hasNext` still says whether another page follows. */
+	pages: number | null;
+	hasNext: boolean;
 }
 

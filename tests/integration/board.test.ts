@@ -1,4 +1,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
+import { QueryTypes } from 'sequelize';
+import { COUNT_LIMIT } from '../../src/lib/board-query';
+import { db } from '../../src/lib/server/db';
 import * as jobs from '../../src/lib/server/jobs';
 import { signedIn, type Client } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -83,5 +86,77 @@ describe('job board', () => {
 		expect(page.status).toBe(200);
 		expect(page.text).toContain('Bram Tessaly');
 		expect(page.text).not.toContain('Orla Penhallow');
+	});
+});
+
+describe('job board on more jobs than a page', () => {
+	let big: ShopFixture;
+	let manager: Client;
+	const numbers: number[] = [];
+
+	beforeAll(async () => {
+		big = await createShop('Board pages');
+		manager = await signedIn(big.staff.manager.email, big.staff.manager.password);
+		for (let i = 0; i < 23; i++) numbers.push((await createJob(big, { customerName: `Page Person ${i}`, serial: `PP-${i}` })).job.number);
+		numbers.sort((a, b) => a - b);
+	});
+
+	const get = async (query: string) => {
+		const reply = await manager.get(`/api/jobs?${query}`);
+		expect(reply.status).toBe(200);
+		return reply.json();
+	};
+
+	it('pages read from either end join up into the whole sorted list', async () => {
+		for (const dir of ['asc', 'desc']) {
+			const seen: number[] = [];
+			for (let page = 1; page <= 3; page++) {
+				const reply = await get(`sort=number&dir=${dir}&per=10&page=${page}`);
+				expect(reply).toMatchObject({ total: 23, pages: 3, exact: true, hasNext: page < 3 });
+				seen.push(...reply.rows.map((r: { number: number }) => r.number));
+			}
+			expect(seen).toEqual(dir === 'asc' ? numbers : [...numbers].reverse());
+		}
+		const byCustomer: string[] = [];
+		for (let page = 1; page <= 3; page++) byCustomer.push(...(await get(`sort=customer&dir=asc&per=10&page=${page}`)).rows.map((r: { customer: string }) => r.customer));
+		expect(byCustomer).toHaveLength(23);
+		expect(new Set(byCustomer).size).toBe(23);
+		expect((await get('sort=number&per=10&page=4')).rows).toEqual([]);
+	});
+
+	it('a search pages through its matches with exact counts below the counting limit', async () => {
+		expect(COUNT_LIMIT).toBeGreaterThan(23);
+		const first = await get('q=page%20person&sort=number&dir=asc&per=10');
+		expect(first).toMatchObject({ total: 23, pages: 3, exact: true, hasNext: true });
+		expect(first.counts.checked_in).toBe(23);
+		const last = await get('q=page%20person&sort=number&dir=asc&per=10&page=3');
+		expect(last.rows.map((r: { number: number }) => r.number)).toEqual(numbers.slice(20));
+		expect(last.hasNext).toBe(false);
+	});
+
+	it('the counts kept by triggers follow check-in, moves, reassignment and deletion', async () => {
+		const tech = actor(big, 'technician');
+		const [a, b] = (await get('sort=number&dir=asc&per=10')).rows;
+		await jobs.transition(tech, a.id, 'diagnosing');
+		await jobs.assign(actor(big, 'writer'), b.id, null);
+		const kept = async () =>
+			db().query<{ status: string; technician: string; kept: number; actual: number }>(
+				`SELECT coalesce(k.status, a.status) AS status, coalesce(k.technician_key, a.technician_key)::text AS technician,
+				        coalesce(k.n, 0) AS kept, coalesce(a.n, 0)::int AS actual
+				   FROM (SELECT * FROM job_status_counts WHERE shop_id = :shop AND n <> 0) k
+				   FULL JOIN (SELECT status, coalesce(technician_id, '00000000-0000-0000-0000-000000000000') AS technician_key, count(*) AS n
+				                FROM jobs WHERE shop_id = :shop GROUP BY 1, 2) a
+				     ON a.status = k.status AND a.technician_key = k.technician_key`,
+				{ replacements: { shop: big.id }, type: QueryTypes.SELECT }
+			);
+		const before = await kept();
+		expect(before.length).toBeGreaterThanOrEqual(3);
+		for (const row of before) expect(row.kept).toBe(row.actual);
+		expect((await get('')).counts).toMatchObject({ checked_in: 22, diagnosing: 1 });
+		expect((await get('tech=none')).total).toBe(1);
+
+		await db().query('DELETE FROM jobs WHERE id = :id', { replacements: { id: b.id } });
+		for (const row of await kept()) expect(row.kept).toBe(row.actual);
+		expect((await get('')).total).toBe(22);
 	});
 });

@@ -1,7 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import { JOB_STATUSES, type JobStatus } from '../domain';
 import { db } from './db';
-import type { BoardPage, BoardQuery, BoardRow, SortKey } from '../board-query';
+import { COUNT_LIMIT, type BoardPage, type BoardQuery, type BoardRow, type SortKey } from '../board-query';
 export { parseBoardQuery, toSearchParams } from '../board-query';
 
 export const SORTS: Record<SortKey, string> = {
@@ -15,7 +15,14 @@ export const SORTS: Record<SortKey, string> = {
 	opened: 'j.created_at'
 };
 
-/** One page of the job board plus counts per status, all in SQL on indexed, denormalised columns. */
+const NO_TECHNICIAN = '00000000-0000-0000-0000-000000000000';
+
+/**
+ * One page of the job board plus counts per status, all in SQL on indexed, denormalised columns.
+ * Counts under status and technician filters come from `job_status_counts` (kept by triggers);
+ * with a search or age filter they are counted over at most COUNT_LIMIT + 1 matching jobs, and
+ * beyond that the board says "more than".
+ */
 export async function page(shopId: string, query: BoardQuery): Promise<BoardPage> {
 	const where: string[] = ['j.shop_id = :shopId'];
 	const replacements: Record<string, unknown> = { shopId };
@@ -31,38 +38,98 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	}
 	if (query.age === 'stale') where.push("j.status_changed_at < now() - interval '14 days' AND j.status <> 'picked_up'");
 	else if (query.age) where.push(`j.created_at >= now() - make_interval(days => ${Number(query.age)})`);
-
-	const statusFilter = query.status.length ? ' AND j.status IN (:statuses)' : '';
 	if (query.status.length) replacements.statuses = query.status;
-	const direction = query.dir === 'asc' ? 'ASC' : 'DESC';
-	const nulls = direction === 'ASC' ? 'NULLS LAST' : 'NULLS FIRST';
+	const statusFilter = query.status.length ? ' AND j.status IN (:statuses)' : '';
+	const filtered = `FROM jobs j WHERE ${where.join(' AND ')}`;
 	const offset = (query.page - 1) * query.per;
+	const orderBy = (ascending: boolean) => {
+		const direction = ascending ? 'ASC' : 'DESC';
+		return query.sort === 'number'
+			? `j.number ${direction}` // unique within a shop
+			: `${SORTS[query.sort]} ${direction} ${ascending ? 'NULLS LAST' : 'NULLS FIRST'}, j.id ${direction}`;
+	};
+	const pageOf = (source: string, order: string, window: string) =>
+		`SELECT ${COLUMNS} FROM ${source} JOIN units u ON u.id = j.unit_id ORDER BY ${order} ${window}`;
+	// A walk along the sort key's index. Deep in, it reads only ids (from the index alone where it
+	// can) and then the page's rows, so skipped rows cost an index entry each, not a table row; near
+	// the start the plainer query plans faster.
+	const walk = (order: string, limit: number, skip: number) =>
+		skip < 500
+			? `(SELECT j.* ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET ${skip}) j`
+			: `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET ${skip})) j`;
 
-	const [rows, countRows] = await Promise.all([
-		db().query<BoardRow>(
-			`SELECT j.id, j.number, j.status, left(j.complaint, 160) AS complaint, j.customer_name AS customer,
-			        j.unit_label AS unit, u.kind, u.serial, j.technician_name AS technician,
-			        to_char(j.promised_on, 'YYYY-MM-DD') AS "promisedOn", j.created_at AS "openedAt", j.status_changed_at AS "changedAt"
-			   FROM jobs j JOIN units u ON u.id = j.unit_id
-			  WHERE ${where.join(' AND ')}${statusFilter}
-			  ORDER BY ${SORTS[query.sort]} ${direction} ${nulls}, j.id ${direction}
-			  LIMIT ${query.per} OFFSET ${offset}`,
-			{ replacements, type: QueryTypes.SELECT }
-		),
-		db().query<{ status: JobStatus; n: number }>(
-			`SELECT j.status, count(*)::int AS n FROM jobs j WHERE ${where.join(' AND ')} GROUP BY j.status`,
-			{ replacements, type: QueryTypes.SELECT }
-		)
-	]);
 	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
-	for (const row of countRows) counts[row.status] = row.n;
 	const counted: readonly JobStatus[] = query.status.length ? query.status : JOB_STATUSES;
-	const total = counted.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
+	const sumOf = (statuses: readonly JobStatus[]) => statuses.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
+
+	if (words.length || query.age) {
+		// One trip: the first COUNT_LIMIT + 1 matches, their counts, and the page sorted out of them —
+		// the whole answer when they are all the matches there are.
+		const [found] = await db().query<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
+			`WITH m AS MATERIALIZED (SELECT j.id, j.status ${filtered} LIMIT ${COUNT_LIMIT + 1})
+			 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
+			        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`, orderBy(query.dir === 'asc'), `LIMIT ${query.per} OFFSET ${offset}`)}) p
+			          WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`,
+			{ replacements, type: QueryTypes.SELECT }
+		);
+		Object.assign(counts, found.counts ?? {});
+		if (sumOf(JOB_STATUSES) <= COUNT_LIMIT) return answer(query, found.page ?? [], sumOf(counted), true, counts);
+		let total: number | null = null;
+		if (query.status.length) {
+			const [{ n }] = await db().query<{ n: number }>(
+				`SELECT count(*)::int AS n FROM (SELECT 1 ${filtered}${statusFilter} LIMIT ${COUNT_LIMIT + 1}) m`,
+				{ replacements, type: QueryTypes.SELECT }
+			);
+			if (n <= COUNT_LIMIT) total = n;
+		}
+		if (total !== null) {
+			const rows = await db().query<BoardRow>(
+				pageOf(`(SELECT j.* ${filtered}${statusFilter} LIMIT ${COUNT_LIMIT + 1}) j`, orderBy(query.dir === 'asc'), `LIMIT ${query.per} OFFSET ${offset}`),
+				{ replacements, type: QueryTypes.SELECT }
+			);
+			return answer(query, rows, total, false, counts);
+		}
+		// Many matches: a walk along the sort key's index, one row past the page to know whether another follows.
+		const order = orderBy(query.dir === 'asc');
+		const rows = await db().query<BoardRow>(
+			pageOf(walk(order, query.per + 1, offset), order, ''),
+			{ replacements, type: QueryTypes.SELECT }
+		);
+		return answer(query, rows, null, false, counts);
+	}
+
+	const countRows = await db().query<{ status: JobStatus; n: number }>(
+		`SELECT status, sum(n)::int AS n FROM job_status_counts
+		  WHERE shop_id = :shopId${query.tech ? ' AND technician_key = :techKey' : ''} GROUP BY status`,
+		{ replacements: { shopId, techKey: query.tech === 'none' ? NO_TECHNICIAN : query.tech }, type: QueryTypes.SELECT }
+	);
+	for (const row of countRows) counts[row.status] = row.n;
+	const total = sumOf(counted);
+	// Past the middle, the page is read from the far end in the opposite order and turned round: the
+	// last page costs what the first does.
+	const take = Math.max(0, Math.min(query.per, total - offset));
+	const fromEnd = offset > total / 2;
+	const order = orderBy((query.dir === 'asc') !== fromEnd);
+	const rows = take === 0 ? [] : await db().query<BoardRow>(
+		pageOf(walk(order, take, fromEnd ? total - offset - take : offset), order, ''),
+		{ replacements, type: QueryTypes.SELECT }
+	);
+	return answer(query, fromEnd ? rows.reverse() : rows, total, true, counts);
+}
+
+const COLUMNS = `j.id, j.number, j.status, left(j.complaint, 160) AS complaint, j.customer_name AS customer,
+	j.unit_label AS unit, u.kind, u.serial, j.technician_name AS technician,
+	to_char(j.promised_on, 'YYYY-MM-DD') AS "promisedOn", j.created_at AS "openedAt", j.status_changed_at AS "changedAt"`;
+
+/** `rows` may hold one row past the page when the total is unknown: it only says another page follows. */
+function answer(query: BoardQuery, rows: BoardRow[], total: number | null, exact: boolean, counts: Record<JobStatus, number>): BoardPage {
 	return {
-		rows: rows.map((r) => ({ ...r, openedAt: new Date(r.openedAt).toISOString(), changedAt: new Date(r.changedAt).toISOString() })),
+		rows: rows.slice(0, query.per).map((r) => ({ ...r, openedAt: new Date(r.openedAt).toISOString(), changedAt: new Date(r.changedAt).toISOString() })),
 		total,
+		exact,
 		counts,
 		query,
-		pages: Math.max(1, Math.ceil(total / query.per))
+		pages: total === null ? null : Math.max(1, Math.ceil(total / query.per)),
+		hasNext: total === null ? rows.length > query.per : query.page * query.per < total
 	};
 }

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
-import { Op } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
+import { db } from '../db';
 import { Session, User, type Role } from '../db/models';
 
 /** Only a hash of the session token is stored; a leaked table holds no usable cookie. */
@@ -8,21 +9,19 @@ export function hashToken(token: string): string {
 	return createHash('sha256').update(token).digest('hex');
 }
 
-function toDatabaseUser(user: User): DatabaseUser {
-	return {
-		id: user.id,
-		attributes: { shopId: user.shopId, role: user.role, name: user.name, email: user.email }
-	};
-}
-
 /** lucia's seven adapter methods on the Sequelize models. */
 export const sessionAdapter: Adapter = {
+	// Runs on every signed-in request: one plain query, no model instances.
 	async getSessionAndUser(sessionId) {
-		const row = await Session.findByPk(hashToken(sessionId), { include: [{ model: User, required: true }] });
-		const user = (row as (Session & { User?: User }) | null)?.User;
-		if (!row || !user || !user.active) return [null, null];
-		const session: DatabaseSession = { id: sessionId, userId: row.userId, expiresAt: row.expiresAt, attributes: {} };
-		return [session, toDatabaseUser(user)];
+		const [row] = await db().query<{ userId: string; expiresAt: Date; shopId: string; role: Role; name: string; email: string }>(
+			`SELECT s.user_id AS "userId", s.expires_at AS "expiresAt", u.shop_id AS "shopId", u.role, u.name, u.email
+			   FROM sessions s JOIN users u ON u.id = s.user_id
+			  WHERE s.id = :id AND u.active`,
+			{ replacements: { id: hashToken(sessionId) }, type: QueryTypes.SELECT }
+		);
+		if (!row) return [null, null];
+		const session: DatabaseSession = { id: sessionId, userId: row.userId, expiresAt: new Date(row.expiresAt), attributes: {} };
+		return [session, { id: row.userId, attributes: { shopId: row.shopId, role: row.role, name: row.name, email: row.email } }];
 	},
 	async getUserSessions(userId) {
 		const rows = await Session.findAll({ where: { userId: String(userId) } });

@@ -8,6 +8,8 @@ import * as outbox from './migrations/20261202-0004-outbox';
 import * as quotes from './migrations/20261202-0005-quotes';
 import * as payments from './migrations/20261202-0006-payments';
 import * as reports from './migrations/20261202-0007-reports';
+import * as boardCounts from './migrations/20261202-0008-board-counts';
+import * as rollupDays from './migrations/20261202-0009-report-rollup-days';
 
 export type Migration = MigrationFn<Sequelize>;
 
@@ -19,7 +21,9 @@ const migrations: { name: string; module: { up: Migration; down: Migration } }[]
 	{ name: '20261202-0004-outbox', module: outbox },
 	{ name: '20261202-0005-quotes', module: quotes },
 	{ name: '20261202-0006-payments', module: payments },
-	{ name: '20261202-0007-reports', module: reports }
+	{ name: '20261202-0007-reports', module: reports },
+	{ name: '20261202-0008-board-counts', module: boardCounts },
+	{ name: '20261202-0009-report-rollup-days', module: rollupDays }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {
