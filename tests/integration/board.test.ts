@@ -159,4 +159,28 @@ describe('job board on more jobs than a page', () => {
 		for (const row of await kept()) expect(row.kept).toBe(row.actual);
 		expect((await get('')).total).toBe(22);
 	});
+	it('past the counting limit it says "more than", still pages, and counts a narrow status exactly', async () => {
+		const [{ unitId, customerId }] = await db().query<{ unitId: string; customerId: string }>(
+			'SELECT unit_id AS "unitId", customer_id AS "customerId" FROM jobs WHERE shop_id = :shop LIMIT 1',
+			{ replacements: { shop: big.id }, type: QueryTypes.SELECT }
+		);
+		const many = COUNT_LIMIT + 5;
+		await db().query(
+			`INSERT INTO jobs (shop_id, number, unit_id, customer_id, complaint, status, search_text, customer_name, unit_label)
+			 SELECT :shop, 90000 + i, :unit, :customer, 'Bulk lot unit', CASE WHEN i <= 5 THEN 'quoted' ELSE 'checked_in' END,
+			        'bulk lot unit ' || i, 'Bulk Lot', 'Bulk lot unit'
+			   FROM generate_series(1, :many) AS i`,
+			{ replacements: { shop: big.id, unit: unitId, customer: customerId, many } }
+		);
+		const first = await get('q=bulk%20lot&sort=number&dir=asc');
+		expect(first).toMatchObject({ total: null, pages: null, exact: false, hasNext: true });
+		expect(first.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 25 }, (_, i) => 90001 + i));
+		const last = await get(`q=bulk%20lot&sort=number&dir=asc&per=100&page=3`);
+		expect(last.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: many - 200 }, (_, i) => 90201 + i));
+		expect(last.hasNext).toBe(false);
+		const quoted = await get('q=bulk%20lot&status=quoted');
+		expect(quoted).toMatchObject({ total: 5, pages: 1, exact: false, hasNext: false });
+		expect(quoted.rows.every((r: { status: string }) => r.status === 'quoted')).toBe(true);
+		expect((await get('')).counts.quoted).toBe(5);
+	});
 });

@@ -57,37 +57,33 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		skip < 500
 			? `(SELECT j.* ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET ${skip}) j`
 			: `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET ${skip})) j`;
+	// The first COUNT_LIMIT + 1 jobs of `source`, counted per status, and in the same statement the
+	// page sorted out of them — which is the page when they are all the matches there are.
+	const firstMatches = async (source: string) => {
+		const [found] = await db().query<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
+			`WITH m AS MATERIALIZED (SELECT j.id, j.status ${source} LIMIT ${COUNT_LIMIT + 1})
+			 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
+			        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`, orderBy(query.dir === 'asc'), `LIMIT ${query.per} OFFSET ${offset}`)}) p
+			          WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`,
+			{ replacements, type: QueryTypes.SELECT }
+		);
+		const perStatus = found.counts ?? {};
+		return { counts: perStatus, matched: Object.values(perStatus).reduce((sum: number, n) => sum + (n ?? 0), 0), page: found.page ?? [] };
+	};
 
 	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
 	const counted: readonly JobStatus[] = query.status.length ? query.status : JOB_STATUSES;
 	const sumOf = (statuses: readonly JobStatus[]) => statuses.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
 
 	if (words.length || query.age) {
-		// One trip: the first COUNT_LIMIT + 1 matches, their counts, and the page sorted out of them —
-		// the whole answer when they are all the matches there are.
-		const [found] = await db().query<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
-			`WITH m AS MATERIALIZED (SELECT j.id, j.status ${filtered} LIMIT ${COUNT_LIMIT + 1})
-			 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
-			        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`, orderBy(query.dir === 'asc'), `LIMIT ${query.per} OFFSET ${offset}`)}) p
-			          WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`,
-			{ replacements, type: QueryTypes.SELECT }
-		);
-		Object.assign(counts, found.counts ?? {});
-		if (sumOf(JOB_STATUSES) <= COUNT_LIMIT) return answer(query, found.page ?? [], sumOf(counted), true, counts);
-		let total: number | null = null;
+		// Every match counted up to the limit: the answer in one trip when they are all there are.
+		const all = await firstMatches(filtered);
+		Object.assign(counts, all.counts);
+		if (all.matched <= COUNT_LIMIT) return answer(query, all.page, sumOf(counted), true, counts);
+		// Too many to count; the status filter alone may still bring the total under the limit.
 		if (query.status.length) {
-			const [{ n }] = await db().query<{ n: number }>(
-				`SELECT count(*)::int AS n FROM (SELECT 1 ${filtered}${statusFilter} LIMIT ${COUNT_LIMIT + 1}) m`,
-				{ replacements, type: QueryTypes.SELECT }
-			);
-			if (n <= COUNT_LIMIT) total = n;
-		}
-		if (total !== null) {
-			const rows = await db().query<BoardRow>(
-				pageOf(`(SELECT j.* ${filtered}${statusFilter} LIMIT ${COUNT_LIMIT + 1}) j`, orderBy(query.dir === 'asc'), `LIMIT ${query.per} OFFSET ${offset}`),
-				{ replacements, type: QueryTypes.SELECT }
-			);
-			return answer(query, rows, total, false, counts);
+			const selected = await firstMatches(filtered + statusFilter);
+			if (selected.matched <= COUNT_LIMIT) return answer(query, selected.page, selected.matched, false, counts);
 		}
 		// Many matches: a walk along the sort key's index, one row past the page to know whether another follows.
 		const order = orderBy(query.dir === 'asc');

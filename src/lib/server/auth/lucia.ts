@@ -1,8 +1,8 @@
 import { createHash } from 'node:crypto';
-import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
+import { Lucia, TimeSpan, type Adapter, type DatabaseSession } from 'lucia';
 import { Op, QueryTypes } from 'sequelize';
 import { db } from '../db';
-import { Session, User, type Role } from '../db/models';
+import { Session, type Role } from '../db/models';
 
 /** Only a hash of the session token is stored; a leaked table holds no usable cookie. */
 export function hashToken(token: string): string {

@@ -41,15 +41,13 @@ export const up: Migration = async ({ context: sequelize }) => {
 		CREATE FUNCTION job_counts_updated() RETURNS trigger LANGUAGE plpgsql AS $fn$
 		BEGIN
 			PERFORM job_counts_add((SELECT jsonb_agg(x) FROM (
-				SELECT shop_id, technician_key, status, sum(n) AS n FROM (
-					SELECT a.shop_id, coalesce(a.technician_id, ${NO_TECHNICIAN}) AS technician_key, a.status, 1 AS n
-					  FROM added a JOIN removed r ON r.id = a.id
-					 WHERE (a.status, a.technician_id, a.shop_id) IS DISTINCT FROM (r.status, r.technician_id, r.shop_id)
-					UNION ALL
-					SELECT r.shop_id, coalesce(r.technician_id, ${NO_TECHNICIAN}), r.status, -1
-					  FROM added a JOIN removed r ON r.id = a.id
-					 WHERE (a.status, a.technician_id, a.shop_id) IS DISTINCT FROM (r.status, r.technician_id, r.shop_id)
-				) d GROUP BY 1, 2, 3) x));
+				SELECT d.shop_id, d.technician_key, d.status, sum(d.n) AS n
+				  FROM added a JOIN removed r ON r.id = a.id
+				 CROSS JOIN LATERAL (VALUES (a.shop_id, coalesce(a.technician_id, ${NO_TECHNICIAN}), a.status, 1),
+				                            (r.shop_id, coalesce(r.technician_id, ${NO_TECHNICIAN}), r.status, -1))
+				       AS d(shop_id, technician_key, status, n)
+				 WHERE (a.status, a.technician_id, a.shop_id) IS DISTINCT FROM (r.status, r.technician_id, r.shop_id)
+				 GROUP BY 1, 2, 3) x));
 			RETURN NULL;
 		END $fn$;
 
