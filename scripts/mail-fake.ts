@@ -18,10 +18,10 @@ import fs from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import path from 'node:path';
-import { pathToFileURL } from 'node:url';
 import { simpleParser, type AddressObject, type ParsedMail } from 'mailparser';
 import { SMTPServer } from 'smtp-server';
 import type { CaughtMessage } from '../src/lib/server/mail/catcher';
+import { announce, argument, runAsMain, stopOnSignal } from './lib/fake-cli';
 
 export type { CaughtAttachment, CaughtMessage } from '../src/lib/server/mail/catcher';
 
@@ -288,11 +288,6 @@ export async function startMailCatcher(options: CatcherOptions): Promise<MailCat
 	};
 }
 
-function argument(name: string): string | undefined {
-	const index = process.argv.indexOf(`--${name}`);
-	return index >= 0 ? process.argv[index + 1] : undefined;
-}
-
 async function main() {
 	const dir = path.resolve(argument('dir') ?? process.env.MAIL_FAKE_DIR ?? path.join(process.env.MENDWISE_DATA_DIR ?? '.data', 'mail'));
 	const catcher = await startMailCatcher({
@@ -301,32 +296,14 @@ async function main() {
 		httpPort: Number(argument('http-port') ?? process.env.MAIL_FAKE_HTTP_PORT ?? 2580),
 		log: (line) => console.log(line)
 	});
-	const rule = '='.repeat(72);
-	console.log(
-		[
-			rule,
-			'  LOCAL MAIL CATCHER — nothing is delivered to real inboxes',
-			`  SMTP ${catcher.smtpUrl}    API ${catcher.apiUrl}/messages`,
-			`  Messages are kept in ${dir}`,
-			'  Read them at /dev/mailbox in the app (MAIL_CATCHER_URL must point at the API).',
-			'  Recipients starting with "reject" are refused (550), "defer" deferred (451).',
-			rule
-		].join('\n')
-	);
-	let stopping = false;
-	const stop = async () => {
-		if (stopping) return;
-		stopping = true;
-		await catcher.stop();
-		process.exit(0);
-	};
-	process.on('SIGINT', stop);
-	process.on('SIGTERM', stop);
+	announce([
+		'LOCAL MAIL CATCHER — nothing is delivered to real inboxes',
+		`SMTP ${catcher.smtpUrl}    API ${catcher.apiUrl}/messages`,
+		`Messages are kept in ${dir}`,
+		'Read them at /dev/mailbox in the app (MAIL_CATCHER_URL must point at the API).',
+		'Recipients starting with "reject" are refused (550), "defer" deferred (451).'
+	]);
+	stopOnSignal(() => catcher.stop());
 }
 
-if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.argv[1])).href) {
-	main().catch((err) => {
-		console.error(`[mail catcher] could not start: ${err instanceof Error ? err.message : err}`);
-		process.exit(1);
-	});
-}
+runAsMain(import.meta.url, 'mail catcher', main);

@@ -24,9 +24,9 @@ import fs from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import path from 'node:path';
-import { pathToFileURL } from 'node:url';
 import Stripe from 'stripe';
 import { formatFixedMoney, fromMinorUnits } from '../src/lib/pricing/money';
+import { announce, argument, runAsMain, stopOnSignal } from './lib/fake-cli';
 
 export const SUCCEEDING_CARD = '4242424242424242';
 export const DECLINED_CARD = '4000000000000002';
@@ -617,11 +617,6 @@ export async function startPaymentFake(options: PaymentFakeOptions): Promise<Pay
 	};
 }
 
-function argument(name: string): string | undefined {
-	const index = process.argv.indexOf(`--${name}`);
-	return index >= 0 ? process.argv[index + 1] : undefined;
-}
-
 async function main() {
 	const secret = process.env.STRIPE_WEBHOOK_SECRET;
 	if (!secret) throw new Error('STRIPE_WEBHOOK_SECRET is not set: the fake signs webhooks with it.');
@@ -634,31 +629,13 @@ async function main() {
 		apiKey: process.env.STRIPE_SECRET_KEY ?? null,
 		log: (line) => console.log(line)
 	});
-	const rule = '='.repeat(72);
-	console.log(
-		[
-			rule,
-			'  LOCAL PAYMENT FAKE — Stripe test stand-in, no real money moves',
-			`  API ${fake.url}/v1    checkout pages ${fake.url}/pay/…`,
-			`  Webhooks to ${process.env.WEBHOOK_URL ?? '(none: set WEBHOOK_URL)'}`,
-			'  Test cards: 4242 4242 4242 4242 succeeds, 4000 0000 0000 0002 is declined.',
-			rule
-		].join('\n')
-	);
-	let stopping = false;
-	const stop = async () => {
-		if (stopping) return;
-		stopping = true;
-		await fake.stop();
-		process.exit(0);
-	};
-	process.on('SIGINT', stop);
-	process.on('SIGTERM', stop);
+	announce([
+		'LOCAL PAYMENT FAKE — Stripe test stand-in, no real money moves',
+		`API ${fake.url}/v1    checkout pages ${fake.url}/pay/…`,
+		`Webhooks to ${process.env.WEBHOOK_URL ?? '(none: set WEBHOOK_URL)'}`,
+		'Test cards: 4242 4242 4242 4242 succeeds, 4000 0000 0000 0002 is declined.'
+	]);
+	stopOnSignal(() => fake.stop());
 }
 
-if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.argv[1])).href) {
-	main().catch((err) => {
-		console.error(`[payment fake] could not start: ${err instanceof Error ? err.message : err}`);
-		process.exit(1);
-	});
-}
+runAsMain(import.meta.url, 'payment fake', main);
