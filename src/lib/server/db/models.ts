@@ -8,6 +8,7 @@ import {
 	type Sequelize
 } from 'sequelize';
 import type { CONDITIONS, FUELS, JobStatus, ReadingResult, UnitKind, VOLTAGES } from '../../domain';
+import { createdAt, id, ref, shopId, text, type Numeric } from './columns';
 
 export const ROLES = ['owner', 'manager', 'writer', 'technician'] as const;
 export type Role = (typeof ROLES)[number];
@@ -92,9 +93,6 @@ export class Customer extends Model<InferAttributes<Customer>, InferCreationAttr
 
 export { CONDITIONS, FUELS, JOB_STATUSES, READING_RESULTS, UNIT_KINDS, VOLTAGES } from '../../domain';
 export type { JobStatus, ReadingResult, UnitKind } from '../../domain';
-
-/** NUMERIC columns travel as strings; wrap them in Decimal before any arithmetic. */
-type Numeric = string;
 
 export class Unit extends Model<InferAttributes<Unit>, InferCreationAttributes<Unit>> {
 	declare id: CreationOptional<string>;
@@ -287,10 +285,6 @@ export class Approval extends Model<InferAttributes<Approval>, InferCreationAttr
 	declare createdAt: CreationOptional<Date>;
 }
 
-const id = { type: DataTypes.UUID, defaultValue: DataTypes.UUIDV4, primaryKey: true };
-const shopId = { type: DataTypes.UUID, allowNull: false };
-const createdAt = { type: DataTypes.DATE, allowNull: false };
-
 let initialised = false;
 
 /** Binds the models to a connection; called once by db(). */
@@ -389,9 +383,7 @@ export function initModels(sequelize: Sequelize): void {
 		},
 		{ sequelize, tableName: 'customers' }
 	);
-	const text = (length?: number) => ({ type: length ? DataTypes.STRING(length) : DataTypes.TEXT, allowNull: false, defaultValue: '' });
 	const numeric = (p: number, s: number, allowNull = true) => ({ type: DataTypes.DECIMAL(p, s), allowNull });
-	const ref = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
 	Unit.init(
 		{
 			id,

@@ -7,6 +7,7 @@ import {
 	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
+import { createdAt, id, ref, shopId, text } from './columns';
 import type { Job, Shop } from './models';
 
 export const OUTBOX_STATUSES = ['queued', 'sending', 'sent', 'failed'] as const;
@@ -51,12 +52,11 @@ let initialised = false;
 export function initOutboxModel(sequelize: Sequelize): void {
 	if (initialised) return;
 	initialised = true;
-	const text = (length?: number) => ({ type: length ? DataTypes.STRING(length) : DataTypes.TEXT, allowNull: false, defaultValue: '' });
 	OutboxMessage.init(
 		{
-			id: { type: DataTypes.UUID, defaultValue: DataTypes.UUIDV4, primaryKey: true },
-			shopId: { type: DataTypes.UUID, allowNull: false },
-			jobId: { type: DataTypes.UUID, allowNull: true },
+			id,
+			shopId,
+			jobId: ref(true),
 			kind: { type: DataTypes.STRING(40), allowNull: false },
 			toAddress: { type: DataTypes.STRING(254), allowNull: false },
 			fromName: text(120),
@@ -73,8 +73,8 @@ export function initOutboxModel(sequelize: Sequelize): void {
 			lastErrorCode: { type: DataTypes.STRING(20), allowNull: true },
 			smtpResponse: { type: DataTypes.STRING(300), allowNull: true },
 			sentAt: { type: DataTypes.DATE, allowNull: true },
-			createdAt: { type: DataTypes.DATE, allowNull: false },
-			updatedAt: { type: DataTypes.DATE, allowNull: false }
+			createdAt,
+			updatedAt: createdAt
 		},
 		{ sequelize, tableName: 'outbox_messages' }
 	);

@@ -7,9 +7,8 @@ import {
 	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
+import { createdAt, id, ref, type Numeric } from './columns';
 import type { Job, Quote, Shop, User } from './models';
-
-type Numeric = string;
 
 export const PAYMENT_KINDS = ['deposit', 'balance'] as const;
 export type PaymentKind = (typeof PAYMENT_KINDS)[number];
@@ -80,10 +79,7 @@ let initialised = false;
 export function initPaymentModels(sequelize: Sequelize): void {
 	if (initialised) return;
 	initialised = true;
-	const id = { type: DataTypes.UUID, defaultValue: DataTypes.UUIDV4, primaryKey: true };
-	const ref = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
 	const money = { type: DataTypes.DECIMAL(14, 4), allowNull: false };
-	const stamp = { type: DataTypes.DATE, allowNull: false };
 	Payment.init(
 		{
 			id,
@@ -102,8 +98,8 @@ export function initPaymentModels(sequelize: Sequelize): void {
 			lastError: { type: DataTypes.STRING(500), allowNull: true },
 			createdBy: ref(true),
 			paidAt: { type: DataTypes.DATE, allowNull: true },
-			createdAt: stamp,
-			updatedAt: stamp
+			createdAt,
+			updatedAt: createdAt
 		},
 		{ sequelize, tableName: 'payments' }
 	);
@@ -118,8 +114,8 @@ export function initPaymentModels(sequelize: Sequelize): void {
 			stripeRefundId: { type: DataTypes.STRING(255), allowNull: true },
 			status: { type: DataTypes.STRING(10), allowNull: false, defaultValue: 'succeeded' },
 			createdBy: ref(true),
-			createdAt: stamp,
-			updatedAt: stamp
+			createdAt,
+			updatedAt: createdAt
 		},
 		{ sequelize, tableName: 'refunds' }
 	);

@@ -7,10 +7,8 @@ import {
 	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
+import { createdAt, id, ref, type Numeric } from './columns';
 import type { Job, Quote, Shop, UnitKind, User } from './models';
-
-/** NUMERIC columns travel as strings; wrap them in Decimal before any arithmetic. */
-type Numeric = string;
 
 /** Hours a technician actually spent on a job. */
 export class JobLabour extends Model<InferAttributes<JobLabour>, InferCreationAttributes<JobLabour>> {
@@ -79,20 +77,17 @@ let initialised = false;
 export function initReportModels(sequelize: Sequelize): void {
 	if (initialised) return;
 	initialised = true;
-	const id = { type: DataTypes.UUID, defaultValue: DataTypes.UUIDV4, primaryKey: true };
-	const uuid = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
 	const numeric = (allowNull = false) => ({ type: DataTypes.DECIMAL, allowNull });
-	const createdAt = { type: DataTypes.DATE, allowNull: false };
 	JobLabour.init(
 		{
 			id,
-			shopId: uuid(),
-			jobId: uuid(),
-			technicianId: uuid(),
+			shopId: ref(),
+			jobId: ref(),
+			technicianId: ref(),
 			hours: { type: DataTypes.DECIMAL(6, 2), allowNull: false },
 			workedOn: { type: DataTypes.DATEONLY, allowNull: false, defaultValue: DataTypes.NOW },
 			note: { type: DataTypes.STRING(300), allowNull: false, defaultValue: '' },
-			recordedBy: uuid(true),
+			recordedBy: ref(true),
 			createdAt
 		},
 		{ sequelize, tableName: 'job_labour', updatedAt: false }
@@ -100,13 +95,13 @@ export function initReportModels(sequelize: Sequelize): void {
 	JobExtraPart.init(
 		{
 			id,
-			shopId: uuid(),
-			jobId: uuid(),
+			shopId: ref(),
+			jobId: ref(),
 			description: { type: DataTypes.STRING(200), allowNull: false },
 			quantity: { type: DataTypes.DECIMAL(10, 2), allowNull: false },
 			unitCost: { type: DataTypes.DECIMAL(12, 2), allowNull: false },
 			lineCost: { type: DataTypes.DECIMAL(14, 2), allowNull: true },
-			recordedBy: uuid(true),
+			recordedBy: ref(true),
 			createdAt
 		},
 		{ sequelize, tableName: 'job_extra_parts', updatedAt: false }
@@ -114,10 +109,10 @@ export function initReportModels(sequelize: Sequelize): void {
 	JobOutcome.init(
 		{
 			jobId: { type: DataTypes.UUID, primaryKey: true },
-			shopId: uuid(),
-			quoteId: uuid(),
+			shopId: ref(),
+			quoteId: ref(),
 			jobNumber: { type: DataTypes.INTEGER, allowNull: false },
-			technicianId: uuid(true),
+			technicianId: ref(true),
 			unitKind: { type: DataTypes.STRING(20), allowNull: false },
 			firstSentAt: { type: DataTypes.DATE, allowNull: false },
 			versionsSent: { type: DataTypes.INTEGER, allowNull: false },
