@@ -3,7 +3,7 @@
 import { error, json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import * as photos from '$lib/server/photos';
-import { drainingBody, requireStaff } from './http';
+import { requireStaff } from './http';
 
 /** Room for the multipart envelope and a caption around the largest allowed file. */
 const ENVELOPE_BYTES = 64 * 1024;
@@ -17,7 +17,7 @@ export const GET: RequestHandler = async ({ params }) => {
 	return json({ photos: (await photos.list(user.shopId, params.id)).map(photos.forClient) });
 };
 
-export const POST: RequestHandler = drainingBody(async ({ params, request }) => {
+export const POST: RequestHandler = async ({ params, request }) => {
 	const user = requireStaff();
 	if (!(await photos.jobExists(user.shopId, params.id))) error(404, 'There is no such job in your shop.');
 	const declared = Number(request.headers.get('content-length') ?? '0');
@@ -46,4 +46,4 @@ export const POST: RequestHandler = drainingBody(async ({ params, request }) => 
 		}
 		throw e;
 	}
-});
+};

@@ -1,4 +1,4 @@
-import { error, type RequestEvent } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import { getRequestEvent } from '$app/server';
 import { STAFF } from '$lib/roles';
 import { requireRole, type AuthUser } from '$lib/server/auth/guard';
@@ -8,29 +8,6 @@ import type { PhotoFile } from '$lib/server/photos';
 export function requireStaff(): AuthUser {
 	if (!getRequestEvent().locals.user) error(401, 'Sign in to continue.');
 	return requireRole(STAFF);
-}
-
-/**
- * Reads and drops whatever the handler left of the request body. The Node adapter pauses an
- * unread body, which would stall the next request on the same keep-alive connection after an
- * early refusal (401, 404, 413).
- */
-export function drainingBody<E extends RequestEvent>(handler: (event: E) => Promise<Response>) {
-	return async (event: E): Promise<Response> => {
-		try {
-			return await handler(event);
-		} finally {
-			const body = event.request.body;
-			if (body && !event.request.bodyUsed && !body.locked) {
-				try {
-					const reader = body.getReader();
-					while (!(await reader.read()).done);
-				} catch {
-					// The client went away or the adapter refused the size: nothing left to drain.
-				}
-			}
-		}
-	};
 }
 
 /** A stored picture as an inline image that only the signed-in browser may cache. */

@@ -5,7 +5,7 @@
 import { error, json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
 import * as photos from '$lib/server/photos';
-import { drainingBody, pictureResponse, requireStaff } from '../http';
+import { pictureResponse, requireStaff } from '../http';
 
 const NOT_FOUND = 'There is no such photo in your shop.';
 
@@ -39,7 +39,7 @@ export const GET: RequestHandler = async ({ params }) => {
 	return pictureResponse(await photos.read(user.shopId, params.id, params.photoId, 'full'), `job-photo-${params.photoId}`);
 };
 
-export const POST: RequestHandler = drainingBody(async ({ params, request }) => {
+export const POST: RequestHandler = async ({ params, request }) => {
 	const user = requireStaff();
 	let raw: unknown;
 	try {
@@ -58,9 +58,9 @@ export const POST: RequestHandler = drainingBody(async ({ params, request }) => 
 	} catch (e) {
 		rethrow(e);
 	}
-});
+};
 
-export const DELETE: RequestHandler = drainingBody(async ({ params }) => {
+export const DELETE: RequestHandler = async ({ params }) => {
 	const user = requireStaff();
 	try {
 		await photos.remove(user, params.id, params.photoId);
@@ -68,4 +68,4 @@ export const DELETE: RequestHandler = drainingBody(async ({ params }) => {
 		rethrow(e);
 	}
 	return new Response(null, { status: 204 });
-});
+};
