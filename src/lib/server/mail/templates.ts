@@ -128,6 +128,16 @@ function compose(options: {
 	};
 }
 
+/** A message from the shop to its customer: greeted by name, signed and answered by the shop. */
+function toCustomer(shop: ShopContact, customerName: string, subject: string, blocks: Block[]): MailContent {
+	return compose({ subject, greeting: hello(customerName), blocks, shop, footer: customerFooter(shop), fromName: shop.name, replyTo: shop.email });
+}
+
+/** A block of label–value rows; a row without a value is left out. */
+function facts(...rows: [string, string | null | undefined | false][]): Block {
+	return { kind: 'facts', rows: rows.filter((row): row is [string, string] => Boolean(row[1])) };
+}
+
 const customerFooter = (shop: ShopContact) =>
 	`You receive this because ${shop.name} is working on your equipment. Reply to this e-mail or call the shop with any question.`;
 
@@ -162,27 +172,13 @@ export function quoteSent(input: {
 	validUntil?: string | null;
 }): MailContent {
 	const { shop } = input;
-	const facts: [string, string][] = [
-		['Job', `#${input.jobNumber}`],
-		['Unit', input.unitLabel]
-	];
-	if (input.total) facts.push(['Quoted total', input.total]);
-	if (input.validUntil) facts.push(['Valid until', input.validUntil]);
-	return compose({
-		subject: `Your quote for job #${input.jobNumber} from ${shop.name}`,
-		greeting: hello(input.customerName),
-		blocks: [
-			paragraph(`We have finished diagnosing your ${input.unitLabel} and written up what it takes to put it right. The quote is attached as a PDF and waiting for you online, where you can compare the options, including whether repair or replacement makes more sense.`),
-			{ kind: 'facts', rows: facts },
-			{ kind: 'button', label: 'Review and approve the quote', href: checkLink(input.link) },
-			paragraph('No work beyond the diagnosis starts until you approve an option in writing.'),
-			{ kind: 'caution' }
-		],
-		shop,
-		footer: customerFooter(shop),
-		fromName: shop.name,
-		replyTo: shop.email
-	});
+	return toCustomer(shop, input.customerName, `Your quote for job #${input.jobNumber} from ${shop.name}`, [
+		paragraph(`We have finished diagnosing your ${input.unitLabel} and written up what it takes to put it right. The quote is attached as a PDF and waiting for you online, where you can compare the options, including whether repair or replacement makes more sense.`),
+		facts(['Job', `#${input.jobNumber}`], ['Unit', input.unitLabel], ['Quoted total', input.total], ['Valid until', input.validUntil]),
+		{ kind: 'button', label: 'Review and approve the quote', href: checkLink(input.link) },
+		paragraph('No work beyond the diagnosis starts until you approve an option in writing.'),
+		{ kind: 'caution' }
+	]);
 }
 
 /** To the customer after they sign: what they approved (the signed PDF is attached by the caller). */
@@ -199,32 +195,24 @@ export function approvalConfirmation(input: {
 	link?: string | null;
 }): MailContent {
 	const { shop } = input;
-	const facts: [string, string][] = [
-		['Job', `#${input.jobNumber}`],
-		['Unit', input.unitLabel],
-		['You approved', input.optionLabel],
-		['Total', input.total]
-	];
-	if (input.deposit) facts.push(['Deposit', input.deposit]);
-	facts.push(['Signed by', input.signedBy], ['Signed on', input.signedAt]);
 	const blocks: Block[] = [
 		paragraph(`Thank you. We have your signed approval for job #${input.jobNumber}; a copy of the signed quote is attached as a PDF for your records.`),
-		{ kind: 'facts', rows: facts }
+		facts(
+			['Job', `#${input.jobNumber}`],
+			['Unit', input.unitLabel],
+			['You approved', input.optionLabel],
+			['Total', input.total],
+			['Deposit', input.deposit],
+			['Signed by', input.signedBy],
+			['Signed on', input.signedAt]
+		)
 	];
 	if (input.link) blocks.push({ kind: 'button', label: 'See your approved quote', href: checkLink(input.link) });
 	blocks.push(
 		paragraph('We will let you know when your unit is ready. If anything found during the repair would change the price, we ask you first.'),
 		{ kind: 'caution' }
 	);
-	return compose({
-		subject: `Approved: job #${input.jobNumber} at ${shop.name}`,
-		greeting: hello(input.customerName),
-		blocks,
-		shop,
-		footer: customerFooter(shop),
-		fromName: shop.name,
-		replyTo: shop.email
-	});
+	return toCustomer(shop, input.customerName, `Approved: job #${input.jobNumber} at ${shop.name}`, blocks);
 }
 
 /** To the shop: the customer approved an option or declined the quote. */
@@ -244,15 +232,6 @@ export function decisionNotice(input: {
 }): MailContent {
 	const { shop } = input;
 	const approved = input.decision === 'approved';
-	const facts: [string, string][] = [
-		['Job', `#${input.jobNumber}`],
-		['Customer', input.customerName],
-		['Unit', input.unitLabel]
-	];
-	if (approved && input.optionLabel) facts.push(['Option', input.optionLabel]);
-	if (approved && input.total) facts.push(['Total', input.total]);
-	facts.push([approved ? 'Signed by' : 'Declined by', input.signedBy], ['When', input.decidedAt]);
-	if (input.note?.trim()) facts.push(['Customer note', input.note.trim()]);
 	return compose({
 		subject: approved
 			? `Job #${input.jobNumber}: ${input.customerName} approved ${input.optionLabel ?? 'the quote'}`
@@ -264,7 +243,16 @@ export function decisionNotice(input: {
 					? `${input.customerName} approved the quote for job #${input.jobNumber}. The job can move to repair; order any special-order parts once the deposit is in.`
 					: `${input.customerName} declined the quote for job #${input.jobNumber}. Arrange the pick-up of the unit and settle any diagnostic fee.`
 			),
-			{ kind: 'facts', rows: facts },
+			facts(
+				['Job', `#${input.jobNumber}`],
+				['Customer', input.customerName],
+				['Unit', input.unitLabel],
+				['Option', approved && input.optionLabel],
+				['Total', approved && input.total],
+				[approved ? 'Signed by' : 'Declined by', input.signedBy],
+				['When', input.decidedAt],
+				['Customer note', input.note?.trim()]
+			),
 			{ kind: 'button', label: 'Open the job', href: checkLink(input.jobLink) }
 		],
 		shop,
@@ -288,27 +276,21 @@ export function paymentReceipt(input: {
 	link?: string | null;
 }): MailContent {
 	const { shop } = input;
-	const facts: [string, string][] = [
-		['Job', `#${input.jobNumber}`],
-		['Unit', input.unitLabel],
-		['Amount paid', input.amount],
-		['Paid on', input.paidAt]
+	const blocks: Block[] = [
+		paragraph(`Thank you for your payment of ${input.amount} for job #${input.jobNumber}. Keep this e-mail as your receipt.`),
+		facts(
+			['Job', `#${input.jobNumber}`],
+			['Unit', input.unitLabel],
+			['Amount paid', input.amount],
+			['Paid on', input.paidAt],
+			['Method', input.method],
+			['Reference', input.reference],
+			['Balance still due', input.balanceDue]
+		)
 	];
-	if (input.method) facts.push(['Method', input.method]);
-	facts.push(['Reference', input.reference]);
-	if (input.balanceDue) facts.push(['Balance still due', input.balanceDue]);
-	const blocks: Block[] = [paragraph(`Thank you for your payment of ${input.amount} for job #${input.jobNumber}. Keep this e-mail as your receipt.`), { kind: 'facts', rows: facts }];
 	if (input.link) blocks.push({ kind: 'button', label: 'See the job and your payments', href: checkLink(input.link) });
 	blocks.push({ kind: 'caution' });
-	return compose({
-		subject: `Receipt: ${input.amount} paid for job #${input.jobNumber} at ${shop.name}`,
-		greeting: hello(input.customerName),
-		blocks,
-		shop,
-		footer: customerFooter(shop),
-		fromName: shop.name,
-		replyTo: shop.email
-	});
+	return toCustomer(shop, input.customerName, `Receipt: ${input.amount} paid for job #${input.jobNumber} at ${shop.name}`, blocks);
 }
 
 /** To the customer: the repair is done and the balance can be paid online. */
@@ -324,20 +306,12 @@ export function balancePaymentLink(input: {
 	const { shop } = input;
 	const blocks: Block[] = [
 		paragraph(`Your ${input.unitLabel} is repaired and tested. The balance for job #${input.jobNumber} is ${input.balance}; you can pay it online before you come by.`),
-		{ kind: 'facts', rows: [['Job', `#${input.jobNumber}`], ['Unit', input.unitLabel], ['Balance due', input.balance]] },
+		facts(['Job', `#${input.jobNumber}`], ['Unit', input.unitLabel], ['Balance due', input.balance]),
 		{ kind: 'button', label: `Pay ${input.balance}`, href: checkLink(input.link) }
 	];
 	if (input.pickupNote?.trim()) blocks.push(paragraph(input.pickupNote.trim()));
 	blocks.push({ kind: 'caution' });
-	return compose({
-		subject: `Job #${input.jobNumber} is ready: balance of ${input.balance} at ${shop.name}`,
-		greeting: hello(input.customerName),
-		blocks,
-		shop,
-		footer: customerFooter(shop),
-		fromName: shop.name,
-		replyTo: shop.email
-	});
+	return toCustomer(shop, input.customerName, `Job #${input.jobNumber} is ready: balance of ${input.balance} at ${shop.name}`, blocks);
 }
 
 function articled(label: string): string {
