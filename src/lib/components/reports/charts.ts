@@ -30,6 +30,13 @@ export interface ChartSpec {
 	series: SeriesSpec[];
 }
 
+/** Outcomes by month and by kind of unit stack the same three answers. */
+const OUTCOME_SERIES: SeriesSpec[] = [
+	{ key: 'repaired', colour: COLOURS.moss, kind: 'bar', stack: 'answers' },
+	{ key: 'replaced', colour: COLOURS.copper, kind: 'bar', stack: 'answers' },
+	{ key: 'declined', colour: COLOURS.brick, kind: 'bar', stack: 'answers' }
+];
+
 export const CHARTS: Record<string, ChartSpec> = {
 	revenue: {
 		x: 'month',
@@ -65,21 +72,13 @@ export const CHARTS: Record<string, ChartSpec> = {
 	outcomes: {
 		x: 'month',
 		left: 'count',
-		series: [
-			{ key: 'repaired', colour: COLOURS.moss, kind: 'bar', stack: 'answers' },
-			{ key: 'replaced', colour: COLOURS.copper, kind: 'bar', stack: 'answers' },
-			{ key: 'declined', colour: COLOURS.brick, kind: 'bar', stack: 'answers' }
-		]
+		series: OUTCOME_SERIES
 	},
 	'outcomes-by-kind': {
 		x: 'kind',
 		left: 'count',
 		horizontal: true,
-		series: [
-			{ key: 'repaired', colour: COLOURS.moss, kind: 'bar', stack: 'answers' },
-			{ key: 'replaced', colour: COLOURS.copper, kind: 'bar', stack: 'answers' },
-			{ key: 'declined', colour: COLOURS.brick, kind: 'bar', stack: 'answers' }
-		]
+		series: OUTCOME_SERIES
 	},
 	'days-to-approval': {
 		x: 'month',
