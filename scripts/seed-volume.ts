@@ -7,7 +7,7 @@ import { QueryTypes } from 'sequelize';
 import { hashPassword } from '../src/lib/server/auth/password';
 import { closeDb, db } from '../src/lib/server/db/index';
 import { Shop, User } from '../src/lib/server/db/models';
-import { BOARD_COLUMNS_SQL } from '../src/lib/server/jobs';
+import { refreshBoardColumns } from '../src/lib/server/jobs';
 import { seedStarterSheets } from '../src/lib/server/specs';
 import { DEMO_LABOUR_COST_RATE, TEMPLATES, historyDraft } from '../src/lib/server/demo-history';
 import { evaluateRequest } from '../src/lib/pricing/evaluate';
@@ -82,10 +82,7 @@ async function main() {
 		       now() - (g % 540) * interval '1 day', now()
 		  FROM generate_series(1, :n) g JOIN u ON u.r = 1 + (g % :units)`,
 		{ n: JOBS, units, techIds: `{${techIds.join(',')}}` });
-	await q(`
-		UPDATE jobs j SET ${BOARD_COLUMNS_SQL}
-		  FROM customers c, units u
-		 WHERE j.shop_id = :shopId AND c.id = j.customer_id AND u.id = j.unit_id`);
+	await refreshBoardColumns({ shopId: shop.id });
 	await q(`
 		INSERT INTO readings (shop_id, job_id, label, unit, value, min_value, max_value, result)
 		SELECT :shopId, j.id, r.label, r.unit, r.value, r.lo, r.hi,

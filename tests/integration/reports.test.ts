@@ -8,7 +8,7 @@ import { evaluateRequest } from '../../src/lib/pricing/evaluate';
 import { Approval, Customer, Job, Quote, QuoteVersion, Unit, type UnitKind } from '../../src/lib/server/db/models';
 import { JobExtraPart, JobLabour, JobOutcome } from '../../src/lib/server/db/report-models';
 import { db } from '../../src/lib/server/db/index';
-import { BOARD_COLUMNS_SQL } from '../../src/lib/server/jobs';
+import { refreshBoardColumns } from '../../src/lib/server/jobs';
 import * as quotes from '../../src/lib/server/quotes';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -97,7 +97,7 @@ async function seedHistory(target: ShopFixture) {
 			status: plan.answer ? (plan.answer.decision === 'approved' ? 'in_repair' : 'declined') : 'quoted', createdBy: target.staff.writer.id
 		});
 		jobIds[plan.key] = job.id;
-		await db().query(`UPDATE jobs j SET ${BOARD_COLUMNS_SQL} FROM customers c, units u WHERE j.id = :id AND c.id = j.customer_id AND u.id = j.unit_id`, { replacements: { id: job.id } });
+		await refreshBoardColumns({ jobIds: [job.id] });
 		const content = {
 			currency: 'USD', diagnosticFee: '89.00', settings: SETTINGS,
 			unit: { ageYears: '3', engineHours: '100', lifeYears: '10', lifeHours: '1500', condition: 'good', asIsValue: '0', annualUpkeep: '0' },

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import * as audit from './audit';
 import { db } from './db';
 import { Customer, Job, Unit } from './db/models';
-import { BOARD_COLUMNS_SQL } from './jobs';
+import { refreshBoardColumns } from './jobs';
 import { isUuid, optionalText, requiredText } from './validators';
 
 export const customerSchema = z.object({
@@ -38,11 +38,7 @@ export async function update(actor: Actor, id: string, input: CustomerInput) {
 	const customer = await get(actor.shopId, id);
 	if (!customer) return null;
 	await customer.update({ ...input, searchText: searchTextOf(input) });
-	await db().query(
-		`UPDATE jobs j SET ${BOARD_COLUMNS_SQL}
-		   FROM customers c, units u WHERE j.customer_id = c.id AND j.unit_id = u.id AND c.id = :id AND j.shop_id = :shopId`,
-		{ replacements: { id, shopId: actor.shopId } }
-	);
+	await refreshBoardColumns({ shopId: actor.shopId, customerId: id });
 	await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'customer.updated', entity: 'customer', entityId: id });
 	return customer;
 }

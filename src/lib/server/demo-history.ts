@@ -6,7 +6,7 @@ import { settingsToJson } from '../pricing/settings';
 import { db } from './db';
 import { Approval, AuditEvent, Customer, Job, Quote, QuoteVersion, Unit } from './db/models';
 import { JobExtraPart, JobLabour } from './db/report-models';
-import { BOARD_COLUMNS_SQL } from './jobs';
+import { refreshBoardColumns } from './jobs';
 import { canonicalJson } from './quotes';
 import * as settings from './settings';
 
@@ -284,10 +284,7 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 
 	await db().transaction(async (transaction) => {
 		const jobs = await Job.bulkCreate(jobRows as InferCreationAttributes<Job>[], { transaction, returning: true });
-		await db().query(`UPDATE jobs j SET ${BOARD_COLUMNS_SQL} FROM customers c, units u WHERE j.id IN (:ids) AND c.id = j.customer_id AND u.id = j.unit_id`, {
-			replacements: { ids: jobs.map((j) => j.id) },
-			transaction
-		});
+		await refreshBoardColumns({ jobIds: jobs.map((j) => j.id) }, transaction);
 		quoteRows.forEach((row, i) => (row.jobId = jobs[i].id));
 		const quotes = await Quote.bulkCreate(quoteRows as InferCreationAttributes<Quote>[], { transaction, returning: true });
 		const versions = await QuoteVersion.bulkCreate(

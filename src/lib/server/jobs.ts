@@ -62,17 +62,29 @@ async function technicianOf(shopId: string, technicianId: string | null, transac
 }
 
 /** The board's search text and sort keys live on the job row so the board never joins to sort. */
-export const BOARD_COLUMNS_SQL = `
+const BOARD_COLUMNS_SQL = `
 	search_text = lower(concat_ws(' ', '#' || j.number, c.name, c.phone, u.maker, u.model, u.serial, j.complaint)),
 	customer_name = c.name,
 	unit_label = concat_ws(' ', nullif(u.maker, ''), nullif(u.model, '')),
 	technician_name = (SELECT name FROM users WHERE id = j.technician_id)`;
 
-async function refreshBoardColumns(jobId: string, transaction?: Transaction) {
+/**
+ * Rewrites those columns from the customer, unit and technician they copy: for the given jobs, or
+ * for the jobs of one shop — all of them, or those of one customer or one unit after it was edited.
+ */
+export async function refreshBoardColumns(
+	which: { jobIds: string[] } | { shopId: string; customerId?: string; unitId?: string },
+	transaction?: Transaction
+): Promise<void> {
+	if ('jobIds' in which && which.jobIds.length === 0) return;
+	const condition =
+		'jobIds' in which
+			? 'j.id IN (:jobIds)'
+			: ['j.shop_id = :shopId', which.customerId && 'c.id = :customerId', which.unitId && 'u.id = :unitId'].filter(Boolean).join(' AND ');
 	await db().query(
 		`UPDATE jobs j SET ${BOARD_COLUMNS_SQL}
-		   FROM customers c, units u WHERE j.id = :jobId AND c.id = j.customer_id AND u.id = j.unit_id`,
-		{ replacements: { jobId }, transaction }
+		   FROM customers c, units u WHERE c.id = j.customer_id AND u.id = j.unit_id AND ${condition}`,
+		{ replacements: which, transaction }
 	);
 }
 
@@ -99,7 +111,7 @@ export async function checkIn(actor: Actor, unitId: string, input: CheckInInput)
 			},
 			{ transaction }
 		);
-		await refreshBoardColumns(job.id, transaction);
+		await refreshBoardColumns({ jobIds: [job.id] }, transaction);
 		await audit.record(
 			{ shopId: actor.shopId, userId: actor.id, action: 'job.status', entity: 'job', entityId: job.id, detail: { from: null, to: 'checked_in' } },
 			transaction
@@ -172,7 +184,7 @@ export async function assign(actor: Actor, jobId: string, technicianId: string |
 	if (!job) throw new UserError('No such job in your shop.');
 	await technicianOf(actor.shopId, technicianId);
 	await job.update({ technicianId });
-	await refreshBoardColumns(jobId);
+	await refreshBoardColumns({ jobIds: [jobId] });
 	await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'job.assigned', entity: 'job', entityId: jobId, detail: { technicianId } });
 }
 

@@ -3,7 +3,7 @@ import * as audit from './audit';
 import { CONDITIONS, FUELS, UNIT_KINDS, VOLTAGES } from '../domain';
 import { db } from './db';
 import { Job, Unit } from './db/models';
-import { BOARD_COLUMNS_SQL } from './jobs';
+import { refreshBoardColumns } from './jobs';
 import { isUuid, optionalDecimalString, optionalInt, optionalText } from './validators';
 
 export const unitSchema = z
@@ -48,11 +48,7 @@ export async function update(actor: Actor, id: string, input: UnitInput) {
 	const unit = await get(actor.shopId, id);
 	if (!unit) return null;
 	await unit.update(input);
-	await db().query(
-		`UPDATE jobs j SET ${BOARD_COLUMNS_SQL}
-		   FROM customers c, units u WHERE j.unit_id = u.id AND j.customer_id = c.id AND u.id = :id AND j.shop_id = :shopId`,
-		{ replacements: { id, shopId: actor.shopId } }
-	);
+	await refreshBoardColumns({ shopId: actor.shopId, unitId: id });
 	await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'unit.updated', entity: 'unit', entityId: id });
 	return unit;
 }
