@@ -275,6 +275,24 @@ function escapeLike(text: string): string {
 	return text.replace(/[\\%_]/g, (c) => '\\' + c);
 }
 
+/** A labour operation as the pages show it. */
+export function labourView(row: Record<string, unknown>) {
+	return { id: String(row.id), name: String(row.name), hours: String(row.hours) };
+}
+
+/** A replacement unit as the pages show it. */
+export function replacementView(row: Record<string, unknown>) {
+	return {
+		id: String(row.id),
+		kind: String(row.kind),
+		name: String(row.name),
+		ratedWatts: Number(row.ratedWatts),
+		priceNew: String(row.priceNew),
+		lifeYears: String(row.lifeYears),
+		lifeHours: String(row.lifeHours)
+	};
+}
+
 /** Rows of one list, searched by text, at most PAGE_ROWS of them, and how many match in all. */
 export async function list(shopId: string, name: ListName, query = '') {
 	const spec = SPECS[name];

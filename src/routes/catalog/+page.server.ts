@@ -46,19 +46,11 @@ export const load: PageServerLoad = async ({ url }) => {
 		},
 		labour: {
 			total: labour.total,
-			rows: labour.rows.map((r) => ({ id: String(r.id), name: String(r.name), hours: String(r.hours) }))
+			rows: labour.rows.map(catalog.labourView)
 		},
 		replacements: {
 			total: replacements.total,
-			rows: replacements.rows.map((r) => ({
-				id: String(r.id),
-				kind: String(r.kind),
-				name: String(r.name),
-				ratedWatts: Number(r.ratedWatts),
-				priceNew: String(r.priceNew),
-				lifeYears: String(r.lifeYears),
-				lifeHours: String(r.lifeHours)
-			}))
+			rows: replacements.rows.map(catalog.replacementView)
 		}
 	};
 };

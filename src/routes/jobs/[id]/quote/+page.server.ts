@@ -79,16 +79,8 @@ export const load: PageServerLoad = async ({ params }) => {
 		catalog: {
 			parts: parts.rows.map((p) => partView(p, pricing, seesCosts)),
 			partsTotal: parts.total,
-			labour: labour.rows.map((l) => ({ id: String(l.id), name: String(l.name), hours: String(l.hours) })),
-			replacements: replacements.rows.map((r) => ({
-				id: String(r.id),
-				kind: String(r.kind),
-				name: String(r.name),
-				ratedWatts: Number(r.ratedWatts),
-				priceNew: String(r.priceNew),
-				lifeYears: String(r.lifeYears),
-				lifeHours: String(r.lifeHours)
-			}))
+			labour: labour.rows.map(catalog.labourView),
+			replacements: replacements.rows.map(catalog.replacementView)
 		}
 	};
 };
