@@ -1,10 +1,9 @@
 #!/usr/bin/env node
 // `npm start`: from a fresh clone to a running shop, then Ctrl+C stops everything it started.
-import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-	buildDir, dataDir, database, dbTask, ensureDependencies, freePort, log, root, run, startChild, tsx, waitForHttp
+	buildDir, dataDir, database, dbTask, ensureDependencies, freePort, log, paymentFakeEnv, root, run, startChild, tsx, waitForHttp
 } from './lib/bootstrap.mjs';
 
 const stops = [];
@@ -62,14 +61,7 @@ try {
 	let paymentEnv = {};
 	if (!process.env.STRIPE_SECRET_KEY) {
 		const paymentPort = await freePort(Number(process.env.PAYMENT_FAKE_PORT ?? 2590));
-		paymentEnv = {
-			STRIPE_SECRET_KEY: 'sk_test_local_fake',
-			STRIPE_WEBHOOK_SECRET: `whsec_${randomBytes(24).toString('hex')}`,
-			STRIPE_API_HOST: '127.0.0.1',
-			STRIPE_API_PORT: String(paymentPort),
-			STRIPE_API_PROTOCOL: 'http',
-			PAYMENT_FAKE_URL: `http://127.0.0.1:${paymentPort}`
-		};
+		paymentEnv = paymentFakeEnv(paymentPort);
 		const paymentFake = startChild('payment fake', tsx, [
 			path.join(root, 'scripts', 'payment-fake.ts'), '--port', String(paymentPort), '--data', path.join(dataDir, 'payment-fake.json')
 		], { env: { ...process.env, ...paymentEnv, WEBHOOK_URL: `${origin}/api/payments/webhook` } });

@@ -1,11 +1,10 @@
 #!/usr/bin/env node
 // `npm test`: the same bootstrap as `npm start` against a fresh test database, then every test
 // (unit, integration against PostgreSQL and the built app, browser). Ends with "N passed, N failed".
-import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import {
-	dataDir, buildDir, database, dbTask, ensureDebianPackages, ensureDependencies, freePort, log, root, run,
+	dataDir, buildDir, database, dbTask, ensureDebianPackages, ensureDependencies, freePort, log, paymentFakeEnv, root, run,
 	startChild, tsx, waitForHttp
 } from './lib/bootstrap.mjs';
 
@@ -55,14 +54,7 @@ try {
 	// Card payments always go to the local payment fake, whatever Stripe keys the shell has. It
 	// needs the app's webhook address, so it starts once the app's port is chosen.
 	const paymentPort = await freePort(port + 1);
-	const paymentEnv = {
-		STRIPE_SECRET_KEY: 'sk_test_local_fake',
-		STRIPE_WEBHOOK_SECRET: `whsec_${randomBytes(24).toString('hex')}`,
-		STRIPE_API_HOST: '127.0.0.1',
-		STRIPE_API_PORT: String(paymentPort),
-		STRIPE_API_PROTOCOL: 'http',
-		PAYMENT_FAKE_URL: `http://127.0.0.1:${paymentPort}`
-	};
+	const paymentEnv = paymentFakeEnv(paymentPort);
 	const paymentData = path.join(dataDir, 'payment-fake-test.json');
 	fs.rmSync(paymentData, { force: true });
 	const paymentFake = startChild('payment fake', tsx, [path.join(root, 'scripts', 'payment-fake.ts'), '--port', String(paymentPort), '--data', paymentData], {

@@ -31,6 +31,7 @@ export interface Child {
 	stop(): Promise<void>;
 }
 export function startChild(label: string, cmd: string, args: string[], options?: SpawnOptions): Child;
+export function paymentFakeEnv(port: number): Record<string, string>;
 export function waitForHttp(url: string, timeoutMs?: number): Promise<void>;
 export function dbTask(command: string, env: Record<string, string | undefined>): void;
 export function database(options: { name: string; dbName: string; durable: boolean; urlVariable?: string }): Promise<{

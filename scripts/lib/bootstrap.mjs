@@ -227,6 +227,21 @@ export function startChild(label, cmd, args, options = {}) {
 	};
 }
 
+/**
+ * What the app needs to reach the local payment fake on `port` through the Stripe SDK: a test key,
+ * a fresh webhook secret and the fake's address.
+ */
+export function paymentFakeEnv(port) {
+	return {
+		STRIPE_SECRET_KEY: 'sk_test_local_fake',
+		STRIPE_WEBHOOK_SECRET: `whsec_${randomBytes(24).toString('hex')}`,
+		STRIPE_API_HOST: '127.0.0.1',
+		STRIPE_API_PORT: String(port),
+		STRIPE_API_PROTOCOL: 'http',
+		PAYMENT_FAKE_URL: `http://127.0.0.1:${port}`
+	};
+}
+
 export async function waitForHttp(url, timeoutMs = 30000) {
 	const until = Date.now() + timeoutMs;
 	while (Date.now() < until) {
