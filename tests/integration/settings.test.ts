@@ -5,6 +5,7 @@ import { AuditEvent, Part, Shop } from '../../src/lib/server/db/models';
 import * as settings from '../../src/lib/server/settings';
 import { Client, signedIn, type Reply } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
+import { createJob } from '../helpers/shopdata';
 
 type Who = 'anonymous' | 'owner' | 'manager' | 'writer' | 'technician';
 type Entries = [string, string][];
@@ -158,6 +159,11 @@ describe('defaults and saving', () => {
 		const page = await owner.get('/settings');
 		expect(page.text).toContain('value="7.25"');
 		expect(page.text).toContain('value="Larkfield Generator Works"');
+
+		// The check-in form starts from the shop's diagnostic fee, in the shop's currency digits.
+		const { unit } = await createJob(own);
+		const unitPage = await owner.get(`/units/${unit.id}`);
+		expect(unitPage.text).toMatch(/name="diagnosticFee"[^>]*value="99\.50"/);
 	});
 
 	it('a manager may save too, and empty tier rows are left out', async () => {

@@ -209,6 +209,12 @@ const extrasFormSchema = z.object({
 const text = (value: Decimal) => value.toString();
 const percentOf = (fraction: Decimal) => text(fraction.times(HUNDRED));
 
+/** Money as a form shows it: the currency's minor digits ("95.00"), unless it holds finer fractions. */
+export function moneyField(value: Decimal, currency: string): string {
+	const digits = currencyDigits(currency);
+	return value.decimalPlaces() <= digits ? value.toFixed(digits) : text(value);
+}
+
 /** Form values for the shop's current settings. */
 export async function formValues(shopId: string): Promise<SettingsFormValues> {
 	const shop = await findShop(shopId);
@@ -225,9 +231,7 @@ export async function formValues(shopId: string): Promise<SettingsFormValues> {
 		discountPercent: percentOf(p.discountRate),
 		closeCallPercent: percentOf(p.closeCallBand)
 	};
-	const digits = currencyDigits(p.currency);
-	// Money reads best with the currency's minor digits ("95.00"), unless it holds finer fractions.
-	const money = (value: Decimal) => (value.decimalPlaces() <= digits ? value.toFixed(digits) : text(value));
+	const money = (value: Decimal) => moneyField(value, p.currency);
 	for (const key of DIRECT_FIELDS) {
 		const value = p[key];
 		fields[key] = typeof value === 'string' ? value : MONEY_FIELDS.has(key) ? money(value) : text(value);

@@ -6,22 +6,26 @@ import { requireRole } from '$lib/server/auth/guard';
 import * as customers from '$lib/server/customers';
 import { echo, parseForm } from '$lib/server/forms';
 import * as jobs from '$lib/server/jobs';
+import * as settings from '$lib/server/settings';
 import * as units from '$lib/server/units';
 
 export const load: PageServerLoad = async ({ params }) => {
 	const user = requireRole(STAFF);
 	const unit = await units.get(user.shopId, params.id);
 	if (!unit) error(404, 'No such unit in your shop.');
-	const [customer, history, techs] = await Promise.all([
+	const [customer, history, techs, shop] = await Promise.all([
 		customers.get(user.shopId, unit.customerId),
 		units.history(user.shopId, unit.id),
-		jobs.technicians(user.shopId)
+		jobs.technicians(user.shopId),
+		settings.get(user.shopId)
 	]);
 	return {
 		canEdit: FRONT_DESK.includes(user.role),
 		unit: unit.get({ plain: true }),
 		customer: { id: customer!.id, name: customer!.name },
 		technicians: techs.map((t) => ({ id: t.id, name: t.name })),
+		/** The check-in form starts from the shop's diagnostic fee. */
+		diagnosticFee: settings.moneyField(shop.fees.diagnostic, shop.currency),
 		history: history.map((j) => ({ id: j.id, number: j.number, status: j.status, complaint: j.complaint, failedComponent: j.failedComponent, openedAt: j.createdAt.toISOString() }))
 	};
 };
