@@ -417,7 +417,7 @@ describe('the three stories, end to end in a new shop', () => {
 		await step(desk, 'estimate-sent', { axe: 'estimate sent' });
 		await desk.getByText('The estimate and its PDF are on their way to the customer by e-mail.').waitFor();
 		const shown = await desk.getByLabel('Customer link').inputValue();
-		const mail = await waitForMessage(story.customer.email, { subject: `Your quote for job #${story.jobNumber}`, timeoutMs: 30_000 });
+		const mail = await waitForMessage(story.customer.email, { subject: `Your estimate for job #${story.jobNumber}`, timeoutMs: 30_000 });
 		story.customerLink = linkIn(mail, '/q/');
 		expect(new URL(story.customerLink).pathname).toMatch(/^\/q\/[A-Za-z0-9_-]{40,}$/);
 		// The e-mail carries the very link the page shows for a text message.

@@ -123,7 +123,7 @@ describe('the outbox on its own database, two app instances and a catcher the te
 
 		const message = await waitForMessage(to, { catcher: catcher.catcherUrl });
 		expect(message.messageId).toBe(messageId);
-		expect(message.subject).toBe(`Your quote for job #1001 from ${shop.name}`);
+		expect(message.subject).toBe(`Your estimate for job #1001 from ${shop.name}`);
 		expect(message.replyTo).toBe('desk@shop.example');
 		expect(message.headers['auto-submitted']).toBe('auto-generated');
 		expect(message.text).toContain(templates.SAFETY_CAUTION);

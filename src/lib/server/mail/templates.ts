@@ -161,7 +161,7 @@ export function staffInvite(input: { shop: ShopContact; inviterName: string; rol
 	});
 }
 
-/** To the customer: the quote is ready to review and approve (the PDF is attached by the caller). */
+/** To the customer: the estimate is ready to review and approve (the PDF is attached by the caller). */
 export function quoteSent(input: {
 	shop: ShopContact;
 	customerName: string;
@@ -172,10 +172,10 @@ export function quoteSent(input: {
 	validUntil?: string | null;
 }): MailContent {
 	const { shop } = input;
-	return toCustomer(shop, input.customerName, `Your quote for job #${input.jobNumber} from ${shop.name}`, [
-		paragraph(`We have finished diagnosing your ${input.unitLabel} and written up what it takes to put it right. The quote is attached as a PDF and waiting for you online, where you can compare the options, including whether repair or replacement makes more sense.`),
+	return toCustomer(shop, input.customerName, `Your estimate for job #${input.jobNumber} from ${shop.name}`, [
+		paragraph(`We have finished diagnosing your ${input.unitLabel} and written up what it takes to put it right. The estimate is attached as a PDF and waiting for you online, where you can compare the options, including whether repair or replacement makes more sense.`),
 		facts(['Job', `#${input.jobNumber}`], ['Unit', input.unitLabel], ['Quoted total', input.total], ['Valid until', input.validUntil]),
-		{ kind: 'button', label: 'Review and approve the quote', href: checkLink(input.link) },
+		{ kind: 'button', label: 'Review and approve the estimate', href: checkLink(input.link) },
 		paragraph('No work beyond the diagnosis starts until you approve an option in writing.'),
 		{ kind: 'caution' }
 	]);
@@ -196,7 +196,7 @@ export function approvalConfirmation(input: {
 }): MailContent {
 	const { shop } = input;
 	const blocks: Block[] = [
-		paragraph(`Thank you. We have your signed approval for job #${input.jobNumber}; a copy of the signed quote is attached as a PDF for your records.`),
+		paragraph(`Thank you. We have your signed approval for job #${input.jobNumber}; a copy of the signed estimate is attached as a PDF for your records.`),
 		facts(
 			['Job', `#${input.jobNumber}`],
 			['Unit', input.unitLabel],
@@ -207,7 +207,7 @@ export function approvalConfirmation(input: {
 			['Signed on', input.signedAt]
 		)
 	];
-	if (input.link) blocks.push({ kind: 'button', label: 'See your approved quote', href: checkLink(input.link) });
+	if (input.link) blocks.push({ kind: 'button', label: 'See your approved estimate', href: checkLink(input.link) });
 	blocks.push(
 		paragraph('We will let you know when your unit is ready. If anything found during the repair would change the price, we ask you first.'),
 		{ kind: 'caution' }
