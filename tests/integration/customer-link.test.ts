@@ -33,6 +33,8 @@ describe('customer link', () => {
 		expect(page.text).not.toContain('212.40'); // a part's cost never reaches the customer
 		expect(page.text).not.toMatch(/margin/i);
 		expect(page.text).toContain('carbon monoxide');
+		// Labour in hours, as on the PDF (the sample repair quotes 2.5 h).
+		expect(page.text).toMatch(/Replace alternator head 2\.50? h/);
 
 		const unsigned = await approve(customer, token, { optionIndex: '0', signerName: '', consent: 'yes' });
 		expect(unsigned.status).toBe(400);

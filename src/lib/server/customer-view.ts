@@ -52,7 +52,8 @@ export async function customerView(found: Found) {
 			kind: content.options[o.index]?.kind ?? o.kind,
 			lines: o.lines.map((l) => ({
 				description: l.description,
-				quantity: l.quantity,
+				// As on the PDF: labour in hours, parts as a count when more than one.
+				quantityShown: l.quantity === null ? null : l.kind === 'labour' ? `${l.quantity} h` : l.quantity === '1' ? null : `× ${l.quantity}`,
 				unitPrice: money(l.unitPrice),
 				amount: money(l.sell)
 			})),
