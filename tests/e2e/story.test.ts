@@ -499,6 +499,9 @@ describe('the three stories, end to end in a new shop', () => {
 		await bench.getByLabel('Note (optional)').fill('Seized rotor bearing made the head slow to part from the engine.');
 		await bench.getByRole('button', { name: 'Record hours' }).click();
 		await bench.getByText(/2\.75 h · Caddo Frey/).waitFor();
+		// Ready for the next entry: hours empty, the day still today's (not blank after the reset).
+		expect(await bench.getByLabel('Hours', { exact: true }).inputValue()).toBe('');
+		expect(await bench.locator('input[name="workedOn"]').inputValue()).toMatch(/^\d{4}-\d{2}-\d{2}$/);
 		await step(bench, 'actuals-phone', { axe: 'actuals (technician, phone)' });
 		await bench.evaluate(() => window.scrollTo(0, 0));
 		await guideImage(bench, 'technician-actuals-phone.jpg');
@@ -523,6 +526,9 @@ describe('the three stories, end to end in a new shop', () => {
 		await desk.getByLabel('Reference (slip or cheque number)').fill('T-20931');
 		await desk.getByRole('button', { name: 'Record the payment' }).click();
 		await desk.getByTestId('payment-list').getByText('Balance · Card terminal').waitFor();
+		// The recorded payment's amount and slip number do not linger in the form.
+		expect(await desk.getByLabel('Amount (USD)', { exact: true }).inputValue()).toBe('');
+		expect(await desk.getByLabel('Reference (slip or cheque number)').inputValue()).toBe('');
 		await expect(summary.locator('div').filter({ hasText: 'Owed' }).locator('dd').textContent()).resolves.toBe('$0.00');
 		await step(desk, 'payments', { axe: 'payments (writer)' });
 		await guideImage(desk, 'writer-payments-desktop.jpg');
