@@ -1,6 +1,5 @@
-import { QueryTypes } from 'sequelize';
 import { JOB_STATUSES, type JobStatus } from '../domain';
-import { db } from './db';
+import { prepared } from './db/prepared';
 import { COUNT_LIMIT, type BoardPage, type BoardQuery, type BoardRow, type SortKey } from '../board-query';
 export { parseBoardQuery, toSearchParams } from '../board-query';
 
@@ -16,67 +15,72 @@ export const SORTS: Record<SortKey, string> = {
 };
 
 const NO_TECHNICIAN = '00000000-0000-0000-0000-000000000000';
+/** How far along the sort order a search's page is looked for before the matches are sorted instead. */
+const WINDOW = 2000;
+const MAX_WINDOW = 20_000;
 
 /**
  * One page of the job board plus counts per status, all in SQL on indexed, denormalised columns.
  * Counts under status and technician filters come from `job_status_counts` (kept by triggers);
  * with a search or age filter they are counted over at most COUNT_LIMIT + 1 matching jobs, and
- * beyond that the board says "more than".
+ * beyond that the board says "more than". Every statement is prepared: its text depends only on
+ * the shape of the request (which filters, which sort, page size), the values go as parameters.
  */
 export async function page(shopId: string, query: BoardQuery): Promise<BoardPage> {
 	const where: string[] = ['j.shop_id = :shopId'];
-	const replacements: Record<string, unknown> = { shopId };
+	const offset = (query.page - 1) * query.per;
+	const values: Record<string, unknown> = { shopId, offset };
 	const words = query.q.toLowerCase().split(/\s+/).filter(Boolean).slice(0, 5);
 	words.forEach((word, i) => {
 		where.push(`j.search_text LIKE :w${i}`);
-		replacements[`w${i}`] = `%${word.replace(/[\\%_]/g, (m) => '\\' + m)}%`;
+		values[`w${i}`] = `%${word.replace(/[\\%_]/g, (m) => '\\' + m)}%`;
 	});
 	if (query.tech === 'none') where.push('j.technician_id IS NULL');
 	else if (query.tech) {
 		where.push('j.technician_id = :tech');
-		replacements.tech = query.tech;
+		values.tech = query.tech;
 	}
 	if (query.age === 'stale') where.push("j.status_changed_at < now() - interval '14 days' AND j.status <> 'picked_up'");
-	else if (query.age) where.push(`j.created_at >= now() - make_interval(days => ${Number(query.age)})`);
-	if (query.status.length) replacements.statuses = query.status;
-	const statusFilter = query.status.length ? ' AND j.status IN (:statuses)' : '';
+	else if (query.age) {
+		where.push('j.created_at >= now() - make_interval(days => :days::int)');
+		values.days = Number(query.age);
+	}
+	if (query.status.length) values.statuses = query.status;
+	const statusFilter = query.status.length ? ' AND j.status = ANY(:statuses::text[])' : '';
 	const filtered = `FROM jobs j WHERE ${where.join(' AND ')}`;
-	const offset = (query.page - 1) * query.per;
 	const orderBy = (ascending: boolean) => {
 		const direction = ascending ? 'ASC' : 'DESC';
 		return query.sort === 'number'
 			? `j.number ${direction}` // unique within a shop
 			: `${SORTS[query.sort]} ${direction} ${ascending ? 'NULLS LAST' : 'NULLS FIRST'}, j.id ${direction}`;
 	};
-	const pageOf = (source: string, order: string, window: string) =>
-		`SELECT ${COLUMNS} FROM ${source} JOIN units u ON u.id = j.unit_id ORDER BY ${order} ${window}`;
+	const pageOf = (source: string, order: string) =>
+		`SELECT ${COLUMNS} FROM ${source} JOIN units u ON u.id = j.unit_id ORDER BY ${order}`;
 	// A walk along the sort key's index. Deep in, it reads only ids (from the index alone where it
-	// can) and then the page's rows, so skipped rows cost an index entry each, not a table row; near
-	// the start the plainer query plans faster.
-	const walk = (order: string, limit: number, skip: number) =>
-		skip < 500
-			? `(SELECT j.* ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET ${skip}) j`
-			: `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET ${skip})) j`;
-	// The first COUNT_LIMIT + 1 jobs of `source`, counted per status, and in the same statement the
-	// page sorted out of them — which is the page when they are all the matches there are.
-	const firstMatches = async (source: string) => {
-		const [found] = await db().query<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
-			`WITH m AS MATERIALIZED (SELECT j.id, j.status ${source} LIMIT ${COUNT_LIMIT + 1})
-			 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
-			        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`, orderBy(query.dir === 'asc'), `LIMIT ${query.per} OFFSET ${offset}`)}) p
-			          WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`,
-			{ replacements, type: QueryTypes.SELECT }
-		);
-		const perStatus = found.counts ?? {};
-		return { counts: perStatus, matched: Object.values(perStatus).reduce((sum: number, n) => sum + (n ?? 0), 0), page: found.page ?? [] };
-	};
+	// can) and then the page's rows, so skipped rows cost an index entry each, not a table row.
+	const walk = (order: string, limit: number, deep: boolean) =>
+		deep
+			? `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET :skip)) j`
+			: `(SELECT j.* ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET :skip) j`;
+	const one = async <T>(sql: string) => (await prepared<T>(sql, values))[0];
 
 	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
 	const counted: readonly JobStatus[] = query.status.length ? query.status : JOB_STATUSES;
 	const sumOf = (statuses: readonly JobStatus[]) => statuses.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
 
 	if (words.length || query.age) {
-		// Every match counted up to the limit: the answer in one trip when they are all there are.
+		// The first COUNT_LIMIT + 1 matches counted per status and, in the same statement, the page
+		// sorted out of them — which is the page when they are all the matches there are.
+		const firstMatches = async (source: string) => {
+			const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
+				`WITH m AS MATERIALIZED (SELECT j.id, j.status ${source} LIMIT ${COUNT_LIMIT + 1})
+				 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
+				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`, orderBy(query.dir === 'asc'))}
+				          LIMIT ${query.per} OFFSET :offset) p WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`
+			);
+			const perStatus = found.counts ?? {};
+			return { counts: perStatus, matched: Object.values(perStatus).reduce((sum: number, n) => sum + (n ?? 0), 0), page: found.page ?? [] };
+		};
 		const all = await firstMatches(filtered);
 		Object.assign(counts, all.counts);
 		if (all.matched <= COUNT_LIMIT) return answer(query, all.page, sumOf(counted), true, counts);
@@ -85,31 +89,53 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 			const selected = await firstMatches(filtered + statusFilter);
 			if (selected.matched <= COUNT_LIMIT) return answer(query, selected.page, selected.matched, false, counts);
 		}
-		// Many matches: a walk along the sort key's index, one row past the page to know whether another follows.
+		// Many matches, so the page most likely lies among the first jobs in the sort order: a
+		// window of them read along the sort key's index and filtered, one row past the page to
+		// tell whether another follows.
 		const order = orderBy(query.dir === 'asc');
-		const rows = await db().query<BoardRow>(
-			pageOf(walk(order, query.per + 1, offset), order, ''),
-			{ replacements, type: QueryTypes.SELECT }
+		const need = query.per + 1;
+		const window = Math.max(WINDOW, 20 * (offset + need));
+		if (window <= MAX_WINDOW) {
+			const rows = await prepared<BoardRow>(
+				pageOf(`(SELECT j.* FROM (SELECT j.* FROM jobs j WHERE j.shop_id = :shopId ORDER BY ${order} LIMIT ${window}) j
+				  WHERE ${where.join(' AND ')}${statusFilter} ORDER BY ${order} LIMIT ${need} OFFSET :offset) j`, order),
+				values
+			);
+			if (rows.length === need) return answer(query, rows, null, false, counts);
+		}
+		// The matches sit further along (a search for the very thing the board is sorted by, a deep
+		// page): sort the matches themselves.
+		const rows = await prepared<BoardRow>(
+			pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (
+			  WITH m AS MATERIALIZED (SELECT j.id, ${SORTS[query.sort]} ${filtered}${statusFilter})
+			  SELECT j.id FROM m j ORDER BY ${order} LIMIT ${need} OFFSET :offset)) j`, order),
+			values
 		);
 		return answer(query, rows, null, false, counts);
 	}
 
-	const countRows = await db().query<{ status: JobStatus; n: number }>(
-		`SELECT status, sum(n)::int AS n FROM job_status_counts
-		  WHERE shop_id = :shopId${query.tech ? ' AND technician_key = :techKey' : ''} GROUP BY status`,
-		{ replacements: { shopId, techKey: query.tech === 'none' ? NO_TECHNICIAN : query.tech }, type: QueryTypes.SELECT }
-	);
-	for (const row of countRows) counts[row.status] = row.n;
+	values.techKey = query.tech === 'none' ? NO_TECHNICIAN : query.tech;
+	const countsOf = `SELECT json_object_agg(status, n) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
+	  WHERE shop_id = :shopId${query.tech ? ' AND technician_key = :techKey' : ''} GROUP BY status) c`;
+	if (offset === 0) {
+		// The first page needs no total to be read: counts and rows in one statement.
+		const order = orderBy(query.dir === 'asc');
+		values.skip = 0;
+		const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
+			`SELECT (${countsOf}) AS counts, (SELECT json_agg(p) FROM (${pageOf(walk(order, query.per, false), order)}) p) AS page`
+		);
+		Object.assign(counts, found.counts);
+		return answer(query, found.page ?? [], sumOf(counted), true, counts);
+	}
+	Object.assign(counts, (await one<{ counts: Partial<Record<JobStatus, number>> | null }>(`SELECT (${countsOf}) AS counts`)).counts);
 	const total = sumOf(counted);
 	// Past the middle, the page is read from the far end in the opposite order and turned round: the
 	// last page costs what the first does.
 	const take = Math.max(0, Math.min(query.per, total - offset));
 	const fromEnd = offset > total / 2;
 	const order = orderBy((query.dir === 'asc') !== fromEnd);
-	const rows = take === 0 ? [] : await db().query<BoardRow>(
-		pageOf(walk(order, take, fromEnd ? total - offset - take : offset), order, ''),
-		{ replacements, type: QueryTypes.SELECT }
-	);
+	values.skip = fromEnd ? total - offset - take : offset;
+	const rows = take === 0 ? [] : await prepared<BoardRow>(pageOf(walk(order, take, (values.skip as number) >= 500), order), values);
 	return answer(query, fromEnd ? rows.reverse() : rows, total, true, counts);
 }
 

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { Lucia, TimeSpan, type Adapter, type DatabaseSession } from 'lucia';
-import { Op, QueryTypes } from 'sequelize';
-import { db } from '../db';
+import { Op } from 'sequelize';
+import { prepared } from '../db/prepared';
 import { Session, type Role } from '../db/models';
 
 /** Only a hash of the session token is stored; a leaked table holds no usable cookie. */
@@ -11,13 +11,13 @@ export function hashToken(token: string): string {
 
 /** lucia's seven adapter methods on the Sequelize models. */
 export const sessionAdapter: Adapter = {
-	// Runs on every signed-in request: one plain query, no model instances.
+	// Runs on every signed-in request: one prepared statement, no model instances.
 	async getSessionAndUser(sessionId) {
-		const [row] = await db().query<{ userId: string; expiresAt: Date; shopId: string; role: Role; name: string; email: string }>(
+		const [row] = await prepared<{ userId: string; expiresAt: Date; shopId: string; role: Role; name: string; email: string }>(
 			`SELECT s.user_id AS "userId", s.expires_at AS "expiresAt", u.shop_id AS "shopId", u.role, u.name, u.email
 			   FROM sessions s JOIN users u ON u.id = s.user_id
 			  WHERE s.id = :id AND u.active`,
-			{ replacements: { id: hashToken(sessionId) }, type: QueryTypes.SELECT }
+			{ id: hashToken(sessionId) }
 		);
 		if (!row) return [null, null];
 		const session: DatabaseSession = { id: sessionId, userId: row.userId, expiresAt: new Date(row.expiresAt), attributes: {} };

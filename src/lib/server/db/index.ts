@@ -11,6 +11,13 @@ pg.types.setTypeParser(pg.types.builtins.INT8, (value: string) => Number(value))
 
 let instance: Sequelize | undefined;
 
+/**
+ * Errors that mean the connection was lost (a restarted database drops every pooled connection),
+ * or that a statement on its own lost a deadlock and was rolled back whole: safe to run again.
+ * Inside a transaction the retry meets the aborted transaction and the error stands.
+ */
+export const CONNECTION_LOST = [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/, /deadlock detected/];
+
 export function databaseUrl(): string {
 	const url = process.env.DATABASE_URL;
 	if (!url) throw new Error('DATABASE_URL is not set. `npm start` sets it; see README "Configuration".');
@@ -25,14 +32,7 @@ export function db(): Sequelize {
 			dialectModule: pg,
 			logging: process.env.SQL_LOG === '1' ? console.log : false,
 			pool: { max: Number(process.env.DB_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 30_000 },
-			// A restarted database drops every pooled connection; retry the few errors that mean
-			// "connection lost" so requests after recovery succeed. A statement on its own that lost a
-			// deadlock was rolled back whole and is safe to run again (inside a transaction the retry
-			// meets the aborted transaction and the error stands).
-			retry: {
-				max: 3,
-				match: [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/, /deadlock detected/]
-			},
+			retry: { max: 3, match: CONNECTION_LOST },
 			define: { underscored: true, timestamps: true }
 		});
 		initModels(instance);

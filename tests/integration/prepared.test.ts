@@ -1,0 +1,46 @@
+import pg from 'pg';
+import { describe, expect, it } from 'vitest';
+import { databaseUrl } from '../../src/lib/server/db';
+import { positional, prepared } from '../../src/lib/server/db/prepared';
+
+describe('prepared statements', () => {
+	it('turns :name placeholders into numbered parameters and leaves casts alone', () => {
+		expect(positional('SELECT :a::int + :b, :a, x::text FROM t WHERE y = ANY(:list::text[])', { a: 1, b: 2, list: ['p'] })).toEqual({
+			text: 'SELECT $1::int + $2, $1, x::text FROM t WHERE y = ANY($3::text[])',
+			params: [1, 2, ['p']]
+		});
+		expect(() => positional('SELECT :missing', {})).toThrow(/no value for :missing/);
+	});
+
+	it('sends values as data, never as SQL', async () => {
+		const hostile = "x' OR '1'='1";
+		const rows = await prepared<{ same: boolean; text: string }>('SELECT :v::text = :v::text AS same, :v::text AS text', { v: hostile });
+		expect(rows).toEqual([{ same: true, text: hostile }]);
+		expect(await prepared('SELECT 1 FROM jobs WHERE complaint = :v', { v: hostile })).toEqual([]);
+	});
+
+	it('a statement whose connection the database drops mid-way runs again on a fresh connection', async () => {
+		const marker = `retry-${Date.now()}`;
+		const running = prepared<{ pid: number; tag: string }>('SELECT pg_backend_pid() AS pid, :tag::text AS tag FROM pg_sleep(0.5)', { tag: marker });
+		const admin = new pg.Client({ connectionString: databaseUrl() });
+		await admin.connect();
+		let killed: number | undefined;
+		try {
+			for (let tries = 0; tries < 50 && !killed; tries++) {
+				const { rows } = await admin.query<{ pid: number }>(
+					"SELECT pid FROM pg_stat_activity WHERE state = 'active' AND query LIKE '%pg_sleep(0.5)%' AND pid <> pg_backend_pid()"
+				);
+				if (rows.length) {
+					killed = rows[0].pid;
+					await admin.query('SELECT pg_terminate_backend($1)', [killed]);
+				} else await new Promise((resolve) => setTimeout(resolve, 20));
+			}
+		} finally {
+			await admin.end();
+		}
+		expect(killed).toBeDefined();
+		const [row] = await running;
+		expect(row.tag).toBe(marker);
+		expect(row.pid).not.toBe(killed);
+	});
+});
