@@ -159,6 +159,18 @@ describe('job board on more jobs than a page', () => {
 		for (const row of await kept()) expect(row.kept).toBe(row.actual);
 		expect((await get('')).total).toBe(22);
 	});
+	it('sorted by status, pages read within one status join up into the whole sorted list', async () => {
+		for (const dir of ['asc', 'desc']) {
+			const whole: { id: string; status: string }[] = (await get(`sort=status&dir=${dir}&per=100`)).rows;
+			expect(new Set(whole.map((r) => r.status)).size).toBeGreaterThanOrEqual(2);
+			const paged: string[] = [];
+			for (let page = 1; page <= Math.ceil(whole.length / 10); page++) {
+				paged.push(...(await get(`sort=status&dir=${dir}&per=10&page=${page}`)).rows.map((r: { id: string }) => r.id));
+			}
+			expect(paged).toEqual(whole.map((r) => r.id));
+		}
+	});
+
 	it('past the counting limit it says "more than", still pages, and counts a narrow status exactly', async () => {
 		const [{ unitId, customerId }] = await db().query<{ unitId: string; customerId: string }>(
 			'SELECT unit_id AS "unitId", customer_id AS "customerId" FROM jobs WHERE shop_id = :shop LIMIT 1',

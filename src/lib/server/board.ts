@@ -48,20 +48,22 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	if (query.status.length) values.statuses = query.status;
 	const statusFilter = query.status.length ? ' AND j.status = ANY(:statuses::text[])' : '';
 	const filtered = `FROM jobs j WHERE ${where.join(' AND ')}`;
-	const orderBy = (ascending: boolean) => {
+	const orderBy = (ascending: boolean, key = SORTS[query.sort]) => {
 		const direction = ascending ? 'ASC' : 'DESC';
-		return query.sort === 'number'
-			? `j.number ${direction}` // unique within a shop
-			: `${SORTS[query.sort]} ${direction} ${ascending ? 'NULLS LAST' : 'NULLS FIRST'}, j.id ${direction}`;
+		return key === SORTS.number || key === 'j.id'
+			? `${key} ${direction}` // unique within a shop
+			: `${key} ${direction} ${ascending ? 'NULLS LAST' : 'NULLS FIRST'}, j.id ${direction}`;
 	};
 	const pageOf = (source: string, order: string) =>
 		`SELECT ${COLUMNS} FROM ${source} JOIN units u ON u.id = j.unit_id ORDER BY ${order}`;
 	// A walk along the sort key's index. Deep in, it reads only ids (from the index alone where it
 	// can) and then the page's rows, so skipped rows cost an index entry each, not a table row.
-	const walk = (order: string, limit: number, deep: boolean) =>
-		deep
-			? `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET :skip)) j`
-			: `(SELECT j.* ${filtered}${statusFilter} ORDER BY ${order} LIMIT ${limit} OFFSET :skip) j`;
+	const walk = (order: string, limit: number, skip: number, only = statusFilter) => {
+		values.skip = skip;
+		return skip >= 500
+			? `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${only} ORDER BY ${order} LIMIT ${limit} OFFSET :skip)) j`
+			: `(SELECT j.* ${filtered}${only} ORDER BY ${order} LIMIT ${limit} OFFSET :skip) j`;
+	};
 	const one = async <T>(sql: string) => (await prepared<T>(sql, values))[0];
 
 	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
@@ -115,28 +117,53 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	}
 
 	values.techKey = query.tech === 'none' ? NO_TECHNICIAN : query.tech;
-	const countsOf = `SELECT json_object_agg(status, n) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
+	// In the database's own order of statuses: a board sorted by status is laid out in that order.
+	const countsOf = `SELECT json_object_agg(status, n ORDER BY status) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
 	  WHERE shop_id = :shopId${query.tech ? ' AND technician_key = :techKey' : ''} GROUP BY status) c`;
 	if (offset === 0) {
 		// The first page needs no total to be read: counts and rows in one statement.
 		const order = orderBy(query.dir === 'asc');
-		values.skip = 0;
 		const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
-			`SELECT (${countsOf}) AS counts, (SELECT json_agg(p) FROM (${pageOf(walk(order, query.per, false), order)}) p) AS page`
+			`SELECT (${countsOf}) AS counts, (SELECT json_agg(p) FROM (${pageOf(walk(order, query.per, 0), order)}) p) AS page`
 		);
 		Object.assign(counts, found.counts);
 		return answer(query, found.page ?? [], sumOf(counted), true, counts);
 	}
-	Object.assign(counts, (await one<{ counts: Partial<Record<JobStatus, number>> | null }>(`SELECT (${countsOf}) AS counts`)).counts);
+	const kept = (await one<{ counts: Partial<Record<JobStatus, number>> | null }>(`SELECT (${countsOf}) AS counts`)).counts ?? {};
+	Object.assign(counts, kept);
 	const total = sumOf(counted);
-	// Past the middle, the page is read from the far end in the opposite order and turned round: the
-	// last page costs what the first does.
 	const take = Math.max(0, Math.min(query.per, total - offset));
-	const fromEnd = offset > total / 2;
-	const order = orderBy((query.dir === 'asc') !== fromEnd);
-	values.skip = fromEnd ? total - offset - take : offset;
-	const rows = take === 0 ? [] : await prepared<BoardRow>(pageOf(walk(order, take, (values.skip as number) >= 500), order), values);
-	return answer(query, fromEnd ? rows.reverse() : rows, total, true, counts);
+	if (take === 0) return answer(query, [], total, true, counts);
+	// Sorted by status, the counts say which status the page falls in; when it lies within one, the
+	// walk goes along that status's jobs alone.
+	if (query.sort === 'status') {
+		const laidOut = (Object.keys(kept) as JobStatus[]).filter((s) => counted.includes(s));
+		if (query.dir === 'desc') laidOut.reverse();
+		let before = 0;
+		for (const status of laidOut) {
+			if (offset >= before + counts[status]) {
+				before += counts[status];
+				continue;
+			}
+			if (offset + take <= before + counts[status]) {
+				values.within = status;
+				return answer(query, await readPage(offset - before, counts[status], 'j.id', ' AND j.status = :within'), total, true, counts);
+			}
+			break;
+		}
+	}
+	return answer(query, await readPage(offset, total, SORTS[query.sort], statusFilter), total, true, counts);
+
+	/**
+	 * `take` rows from `skip` along `key` (then id) among `of` jobs. Past the middle they are read
+	 * from the far end in the opposite order and turned round: the last page costs what the first does.
+	 */
+	async function readPage(skip: number, of: number, key: string, only: string): Promise<BoardRow[]> {
+		const fromEnd = skip > of / 2;
+		const order = orderBy((query.dir === 'asc') !== fromEnd, key);
+		const rows = await prepared<BoardRow>(pageOf(walk(order, take, fromEnd ? of - skip - take : skip, only), order), values);
+		return fromEnd ? rows.reverse() : rows;
+	}
 }
 
 const COLUMNS = `j.id, j.number, j.status, left(j.complaint, 160) AS complaint, j.customer_name AS customer,

@@ -10,6 +10,7 @@ import * as payments from './migrations/20261202-0006-payments';
 import * as reports from './migrations/20261202-0007-reports';
 import * as boardCounts from './migrations/20261202-0008-board-counts';
 import * as rollupDays from './migrations/20261202-0009-report-rollup-days';
+import * as ageCounts from './migrations/20261202-0010-board-age-counts';
 
 export type Migration = MigrationFn<Sequelize>;
 
@@ -23,7 +24,8 @@ const migrations: { name: string; module: { up: Migration; down: Migration } }[]
 	{ name: '20261202-0006-payments', module: payments },
 	{ name: '20261202-0007-reports', module: reports },
 	{ name: '20261202-0008-board-counts', module: boardCounts },
-	{ name: '20261202-0009-report-rollup-days', module: rollupDays }
+	{ name: '20261202-0009-report-rollup-days', module: rollupDays },
+	{ name: '20261202-0010-board-age-counts', module: ageCounts }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {

@@ -14,7 +14,10 @@ import { CONNECTION_LOST, db } from '.';
 export async function prepared<T>(sql: string, values: Record<string, unknown>): Promise<T[]> {
 	const { text, params } = positional(sql, values);
 	const name = 'm' + createHash('sha1').update(text).digest('base64url').slice(0, 20);
-	const connections = db().connectionManager;
+	const sequelize = db();
+	const connections = sequelize.connectionManager;
+	const log = sequelize.options.logging;
+	if (typeof log === 'function') log(`Executing (prepared ${name}): ${text} ${JSON.stringify(params)}`);
 	for (let attempt = 1; ; attempt++) {
 		let client: (pg.Client & { _invalid?: boolean }) | undefined;
 		try {
