@@ -24,13 +24,18 @@ export function databaseUrl(): string {
 	return url;
 }
 
+/** With SQL_LOG=1 every statement is printed (the pool's and the prepared ones). */
+export function sqlLog(): ((sql: string) => void) | false {
+	return process.env.SQL_LOG === '1' ? console.log : false;
+}
+
 /** The one Sequelize instance of this process, created on first use. */
 export function db(): Sequelize {
 	if (!instance) {
 		instance = new Sequelize(databaseUrl(), {
 			dialect: 'postgres',
 			dialectModule: pg,
-			logging: process.env.SQL_LOG === '1' ? console.log : false,
+			logging: sqlLog(),
 			pool: { max: Number(process.env.DB_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 30_000 },
 			retry: { max: 3, match: CONNECTION_LOST },
 			define: { underscored: true, timestamps: true }

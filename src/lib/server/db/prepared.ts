@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import type pg from 'pg';
-import { CONNECTION_LOST, db } from '.';
+import { CONNECTION_LOST, db, sqlLog } from '.';
 
 /**
  * Runs a read-only statement as a named prepared statement on a connection of the shared pool.
@@ -16,8 +16,8 @@ export async function prepared<T>(sql: string, values: Record<string, unknown>):
 	const name = 'm' + createHash('sha1').update(text).digest('base64url').slice(0, 20);
 	const sequelize = db();
 	const connections = sequelize.connectionManager;
-	const log = sequelize.options.logging;
-	if (typeof log === 'function') log(`Executing (prepared ${name}): ${text} ${JSON.stringify(params)}`);
+	const log = sqlLog();
+	if (log) log(`Executing (prepared ${name}): ${text} ${JSON.stringify(params)}`);
 	for (let attempt = 1; ; attempt++) {
 		let client: (pg.Client & { _invalid?: boolean }) | undefined;
 		try {
