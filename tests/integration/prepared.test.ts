@@ -1,7 +1,7 @@
 import pg from 'pg';
 import { describe, expect, it } from 'vitest';
 import { databaseUrl } from '../../src/lib/server/db';
-import { positional, prepared } from '../../src/lib/server/db/prepared';
+import { PREPARED_PER_CONNECTION, positional, prepared } from '../../src/lib/server/db/prepared';
 
 describe('prepared statements', () => {
 	it('turns :name placeholders into numbered parameters and leaves casts alone', () => {
@@ -17,6 +17,17 @@ describe('prepared statements', () => {
 		const rows = await prepared<{ same: boolean; text: string }>('SELECT :v::text = :v::text AS same, :v::text AS text', { v: hostile });
 		expect(rows).toEqual([{ same: true, text: hostile }]);
 		expect(await prepared('SELECT 1 FROM jobs WHERE complaint = :v', { v: hostile })).toEqual([]);
+	});
+
+	it('a connection keeps a bounded number of prepared statements and still runs the rest', async () => {
+		for (let i = 0; i < PREPARED_PER_CONNECTION + 20; i++) {
+			const [row] = await prepared<{ n: number }>(`SELECT :n::int + ${i} AS n`, { n: 1 });
+			expect(row.n).toBe(1 + i);
+		}
+		// This file's reads run one at a time on one pooled connection.
+		const [{ kept }] = await prepared<{ kept: number }>('SELECT count(*)::int AS kept FROM pg_prepared_statements', {});
+		expect(kept).toBeGreaterThan(PREPARED_PER_CONNECTION / 2);
+		expect(kept).toBeLessThanOrEqual(PREPARED_PER_CONNECTION);
 	});
 
 	it('a statement whose connection the database drops mid-way runs again on a fresh connection', async () => {

@@ -98,8 +98,9 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		const need = query.per + 1;
 		const window = Math.max(WINDOW, 20 * (offset + need));
 		if (window <= MAX_WINDOW) {
+			values.window = window;
 			const rows = await prepared<BoardRow>(
-				pageOf(`(SELECT j.* FROM (SELECT j.* FROM jobs j WHERE j.shop_id = :shopId ORDER BY ${order} LIMIT ${window}) j
+				pageOf(`(SELECT j.* FROM (SELECT j.* FROM jobs j WHERE j.shop_id = :shopId ORDER BY ${order} LIMIT :window) j
 				  WHERE ${where.join(' AND ')}${statusFilter} ORDER BY ${order} LIMIT ${need} OFFSET :offset) j`, order),
 				values
 			);

@@ -8,9 +8,12 @@ import { CONNECTION_LOST, db, sqlLog } from '.';
  * no dearer than planning each time), which on the hot paths costs more than running it.
  *
  * `sql` takes `:name` placeholders filled from `values`, sent as parameters, never spliced in. The
- * text must therefore not vary with the values (only with the shape of the request), so that one
- * connection holds a bounded number of statements.
+ * text should vary only with the shape of a request, not its values; even so a connection keeps at
+ * most PREPARED_PER_CONNECTION statements, and past that runs new texts unprepared.
  */
+export const PREPARED_PER_CONNECTION = 200;
+const preparedOn = new WeakMap<object, Set<string>>();
+
 export async function prepared<T>(sql: string, values: Record<string, unknown>): Promise<T[]> {
 	const { text, params } = positional(sql, values);
 	const name = 'm' + createHash('sha1').update(text).digest('base64url').slice(0, 20);
@@ -22,7 +25,11 @@ export async function prepared<T>(sql: string, values: Record<string, unknown>):
 		let client: (pg.Client & { _invalid?: boolean }) | undefined;
 		try {
 			client = (await connections.getConnection({ type: 'read' })) as unknown as pg.Client & { _invalid?: boolean };
-			const result = await client.query<T & pg.QueryResultRow>({ name, text, values: params });
+			let names = preparedOn.get(client);
+			if (!names) preparedOn.set(client, (names = new Set()));
+			const keep = names.has(name) || names.size < PREPARED_PER_CONNECTION;
+			const result = await client.query<T & pg.QueryResultRow>(keep ? { name, text, values: params } : { text, values: params });
+			if (keep) names.add(name);
 			return result.rows;
 		} catch (error) {
 			// As the pool's own queries do: a connection lost to a database restart is dropped and
