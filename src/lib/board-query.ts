@@ -38,7 +38,8 @@ export function parseBoardQuery(params: URLSearchParams): BoardQuery {
 	);
 	const tech = params.get('tech') ?? '';
 	return {
-		q: (params.get('q') ?? '').trim().slice(0, 100),
+		// Control characters (a NUL cannot even be sent to PostgreSQL) separate words like spaces.
+		q: (params.get('q') ?? '').replace(/[\u0000-\u001f\u007f]/g, ' ').trim().slice(0, 100),
 		status,
 		tech: tech === 'none' || isUuid(tech) ? tech : '',
 		age: pick(params.get('age'), ['', '2', '7', '30', 'stale'] as const, ''),

@@ -79,6 +79,9 @@ describe('job board', () => {
 		const reply = await board('sort=password&dir=sideways&page=-3&per=100000&status=nope&tech=1%27%20OR%201=1&age=forever');
 		expect(reply.total).toBe(5);
 		expect(reply.query).toMatchObject({ sort: 'opened', dir: 'desc', page: 1, per: 25, status: [], tech: '', age: '' });
+		// A NUL or other control character parts words, as a space does.
+		expect((await board('q=%00')).total).toBe(5);
+		expect((await board('q=orla%00penhallow')).rows.map((r: { customer: string }) => r.customer)).toEqual(['Orla Penhallow']);
 	});
 
 	it('the first page renders on the server with the filters from the address', async () => {
