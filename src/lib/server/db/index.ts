@@ -16,7 +16,7 @@ let instance: Sequelize | undefined;
  * or that a statement on its own lost a deadlock and was rolled back whole: safe to run again.
  * Inside a transaction the retry meets the aborted transaction and the error stands.
  */
-export const CONNECTION_LOST = [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/, /deadlock detected/];
+export const RETRYABLE = [/ECONNRESET/, /ECONNREFUSED/, /terminating connection/, /Connection terminated/, /57P01/, /deadlock detected/];
 
 export function databaseUrl(): string {
 	const url = process.env.DATABASE_URL;
@@ -37,7 +37,7 @@ export function db(): Sequelize {
 			dialectModule: pg,
 			logging: sqlLog(),
 			pool: { max: Number(process.env.DB_POOL_MAX ?? 10), min: 0, idle: 10_000, acquire: 30_000 },
-			retry: { max: 3, match: CONNECTION_LOST },
+			retry: { max: 3, match: RETRYABLE },
 			define: { underscored: true, timestamps: true }
 		});
 		initModels(instance);

@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
 import type pg from 'pg';
-import { CONNECTION_LOST, db, sqlLog } from '.';
+import { RETRYABLE, db, sqlLog } from '.';
 
 /**
  * Runs a read-only statement as a named prepared statement on a connection of the shared pool.
@@ -32,11 +32,11 @@ export async function prepared<T>(sql: string, values: Record<string, unknown>):
 			if (keep) names.add(name);
 			return result.rows;
 		} catch (error) {
-			// As the pool's own queries do: a connection lost to a database restart is dropped and
-			// the statement (a read) runs again on a fresh one.
-			const lost = CONNECTION_LOST.some((pattern) => pattern.test(`${(error as Error).message} ${(error as { code?: string }).code ?? ''}`));
-			if (lost && client) client._invalid = true;
-			if (!lost || attempt >= 3) throw error;
+			// As the pool's own queries do: a connection lost to a database restart (or a read that
+			// lost a deadlock) is dropped and the statement runs again on a fresh connection.
+			const retry = RETRYABLE.some((pattern) => pattern.test(`${(error as Error).message} ${(error as { code?: string }).code ?? ''}`));
+			if (retry && client) client._invalid = true;
+			if (!retry || attempt >= 3) throw error;
 			await new Promise((resolve) => setTimeout(resolve, 100 * attempt));
 		} finally {
 			if (client) connections.releaseConnection(client as never);
