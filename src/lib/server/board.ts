@@ -72,12 +72,13 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 
 	if (words.length || query.age) {
 		// The first COUNT_LIMIT + 1 matches counted per status and, in the same statement, the page
-		// sorted out of them — which is the page when they are all the matches there are.
+		// sorted out of them — which is the page when they are all the matches there are. The
+		// matches carry every column a page shows or sorts by, so the page needs no second look.
 		const firstMatches = async (source: string) => {
 			const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
-				`WITH m AS MATERIALIZED (SELECT j.id, j.status ${source} LIMIT ${COUNT_LIMIT + 1})
+				`WITH m AS MATERIALIZED (SELECT ${CARRIED} ${source} LIMIT ${COUNT_LIMIT + 1})
 				 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
-				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`, orderBy(query.dir === 'asc'))}
+				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM m j WHERE true${statusFilter}) j`, orderBy(query.dir === 'asc'))}
 				          LIMIT ${query.per} OFFSET :offset) p WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`
 			);
 			const perStatus = found.counts ?? {};
@@ -166,6 +167,10 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		return fromEnd ? rows.reverse() : rows;
 	}
 }
+
+/** The jobs columns that COLUMNS shows and SORTS sorts by. */
+const CARRIED = `j.id, j.number, j.status, j.complaint, j.customer_name, j.unit_label, j.unit_id, j.technician_name,
+	j.promised_on, j.created_at, j.status_changed_at`;
 
 const COLUMNS = `j.id, j.number, j.status, left(j.complaint, 160) AS complaint, j.customer_name AS customer,
 	j.unit_label AS unit, u.kind, u.serial, j.technician_name AS technician,
