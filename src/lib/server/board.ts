@@ -72,13 +72,17 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 
 	if (words.length || query.age) {
 		// The first COUNT_LIMIT + 1 matches counted per status and, in the same statement, the page
-		// sorted out of them — which is the page when they are all the matches there are. The
-		// matches carry every column a page shows or sorts by, so the page needs no second look.
+		// sorted out of them — which is the page when they are all the matches there are. Matches
+		// of a search come from table rows anyway and carry every column a page shows or sorts by;
+		// an age filter alone counts from its index and looks up only the page's jobs.
+		const [carried, matched] = words.length
+			? [CARRIED, `(SELECT j.* FROM m j WHERE true${statusFilter}) j`]
+			: ['j.id, j.status', `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`];
 		const firstMatches = async (source: string) => {
 			const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
-				`WITH m AS MATERIALIZED (SELECT ${CARRIED} ${source} LIMIT ${COUNT_LIMIT + 1})
+				`WITH m AS MATERIALIZED (SELECT ${carried} ${source} LIMIT ${COUNT_LIMIT + 1})
 				 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
-				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM m j WHERE true${statusFilter}) j`, orderBy(query.dir === 'asc'))}
+				        (SELECT json_agg(p) FROM (${pageOf(matched, orderBy(query.dir === 'asc'))}
 				          LIMIT ${query.per} OFFSET :offset) p WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`
 			);
 			const perStatus = found.counts ?? {};
