@@ -76,14 +76,15 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		// of a search come from table rows anyway and carry every column a page shows or sorts by;
 		// an age filter alone counts from its index and looks up only the page's jobs.
 		const [carried, matched] = words.length
-			? [CARRIED, `(SELECT j.* FROM m j WHERE true${statusFilter}) j`]
-			: ['j.id, j.status', `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}) j`];
+			? [CARRIED, `m j WHERE true${statusFilter}`]
+			: ['j.id, j.status', `jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}`];
+		const order = orderBy(query.dir === 'asc');
 		const firstMatches = async (source: string) => {
 			const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
 				`WITH m AS MATERIALIZED (SELECT ${carried} ${source} LIMIT ${COUNT_LIMIT + 1})
 				 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
-				        (SELECT json_agg(p) FROM (${pageOf(matched, orderBy(query.dir === 'asc'))}
-				          LIMIT ${query.per} OFFSET :offset) p WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`
+				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM ${matched} ORDER BY ${order} LIMIT ${query.per} OFFSET :offset) j`, order)}) p
+				          WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`
 			);
 			const perStatus = found.counts ?? {};
 			return { counts: perStatus, matched: Object.values(perStatus).reduce((sum: number, n) => sum + (n ?? 0), 0), page: found.page ?? [] };
@@ -99,7 +100,6 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		// Many matches, so the page most likely lies among the first jobs in the sort order: a
 		// window of them read along the sort key's index and filtered, one row past the page to
 		// tell whether another follows.
-		const order = orderBy(query.dir === 'asc');
 		const need = query.per + 1;
 		const window = Math.max(WINDOW, 20 * (offset + need));
 		if (window <= MAX_WINDOW) {
