@@ -151,7 +151,8 @@ export async function statusFor(shopId: string, jobId: string): Promise<MessageS
 	const rows = await OutboxMessage.findAll({
 		where: { shopId, jobId },
 		attributes: ['id', 'kind', 'toAddress', 'subject', 'status', 'attempts', 'lastError', 'createdAt', 'sentAt', 'nextAttemptAt'],
-		order: [['createdAt', 'ASC']]
+		// Messages queued in the same millisecond keep one order from one reading to the next.
+		order: [['createdAt', 'ASC'], ['id', 'ASC']]
 	});
 	return rows.map((r) => ({
 		id: r.id,
