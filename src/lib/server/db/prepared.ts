@@ -16,7 +16,7 @@ const preparedOn = new WeakMap<object, Set<string>>();
 
 export async function prepared<T>(sql: string, values: Record<string, unknown>): Promise<T[]> {
 	const { text, params } = positional(sql, values);
-	const name = 'm' + createHash('sha1').update(text).digest('base64url').slice(0, 20);
+	const { name } = compiled(sql);
 	const sequelize = db();
 	const connections = sequelize.connectionManager;
 	const log = sqlLog();
@@ -46,17 +46,28 @@ export async function prepared<T>(sql: string, values: Record<string, unknown>):
 
 /** `:name` placeholders to `$1`, `$2`… (the same name, the same number); `::type` casts are left alone. */
 export function positional(sql: string, values: Record<string, unknown>): { text: string; params: unknown[] } {
-	const params: unknown[] = [];
-	const numbers = new Map<string, number>();
-	const text = sql.replace(/(?<![:\w]):([a-zA-Z_]\w*)/g, (_match, key: string) => {
+	const { text, keys } = compiled(sql);
+	const params = keys.map((key) => {
 		if (!(key in values)) throw new Error(`no value for :${key}`);
-		let n = numbers.get(key);
-		if (n === undefined) {
-			params.push(values[key]);
-			n = params.length;
-			numbers.set(key, n);
-		}
-		return `$${n}`;
+		return values[key];
 	});
 	return { text, params };
+}
+
+/** The numbered text, its placeholders in order and its statement name, worked out once per text. */
+const compiledTexts = new Map<string, { text: string; keys: string[]; name: string }>();
+function compiled(sql: string) {
+	let found = compiledTexts.get(sql);
+	if (!found) {
+		const keys: string[] = [];
+		const text = sql.replace(/(?<![:\w]):([a-zA-Z_]\w*)/g, (_match, key: string) => {
+			const n = keys.indexOf(key) + 1 || keys.push(key);
+			return `$${n}`;
+		});
+		found = { text, keys, name: 'm' + createHash('sha1').update(text).digest('base64url').slice(0, 20) };
+		// Texts vary only with a request's shape; the bound is a guard, not a working size.
+		if (compiledTexts.size >= 1000) compiledTexts.clear();
+		compiledTexts.set(sql, found);
+	}
+	return found;
 }
