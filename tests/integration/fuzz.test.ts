@@ -1,5 +1,5 @@
 // Hostile input, generated: every form action and JSON route gets malformed, oversized, wrongly
-// typed and boundary values (fast-check, 100 runs each). Whatever arrives, the answer is never a
+// typed and boundary values (fast-check, 100 runs each; FUZZ_RUNS=n for a longer hunt). Whatever arrives, the answer is never a
 // 500 and never a stack trace; a refusal is a 4xx with a message. Numbers that would be NaN,
 // Infinity or absurd are refused outright. Uploads are covered in photos.test.ts.
 //
@@ -16,7 +16,7 @@ import { actionsOf, methodsOf, routeOf, routeTree } from '../helpers/routes';
 import { sampleDraft } from '../helpers/quotes';
 import { buildWorld, type World } from '../helpers/world';
 
-const RUNS = 100;
+const RUNS = Number(process.env.FUZZ_RUNS) > 0 ? Math.floor(Number(process.env.FUZZ_RUNS)) : 100;
 type Who = 'owner' | 'manager' | 'anonymous';
 type Value = string | string[] | Blob;
 type Fields = Record<string, Value>;

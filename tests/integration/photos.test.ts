@@ -420,6 +420,18 @@ describe('editing and removing', () => {
 		expect(row.shopId).toBe(a.id);
 	});
 
+	it('keeps a caption whose JSON spells half a UTF-16 pair, with U+FFFD in its place', async () => {
+		// JSON may escape a lone surrogate; PostgreSQL's jsonb (the audit detail) refuses one, so it
+		// must never reach the database as such. Found by the fuzz suite as a 500.
+		const reply = await ownerA.postJson(`/jobs/${jobA}/photos/${photoId}`, '{"caption":"Rotor \\ud800 lead"}');
+		expect(reply.status).toBe(200);
+		expect(reply.json().caption).toBe('Rotor \ufffd lead');
+		expect((await Photo.findByPk(photoId))!.caption).toBe('Rotor \ufffd lead');
+		const events = await AuditEvent.findAll({ where: { shopId: a.id, action: 'photo.updated', entityId: photoId } });
+		expect(events.map((e) => (e.detail as { caption?: string }).caption)).toContain('Rotor \ufffd lead');
+		await ownerA.postJson(`/jobs/${jobA}/photos/${photoId}`, { caption: 'Brushes worn to the stops' });
+	});
+
 	it('deletes a photo, records it, and a second delete is 404', async () => {
 		const doomed = (await upload(ownerA, jobA, webp, 'doomed.webp', 'image/webp')).json().id;
 		const before = await countFor(jobA);

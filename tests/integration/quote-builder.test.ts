@@ -151,6 +151,20 @@ describe('saving with a lock version', () => {
 		expect((stored.draft as any).options[0].lines[0].unitCost).toBe('150.00');
 	});
 
+	it('a draft whose JSON spells half a UTF-16 pair is saved with U+FFFD in its place', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		const start = await lockOf(job.id);
+		const draft = alternatorDraft();
+		draft.options[0].label = 'Rebuild \ud800';
+		const json = JSON.stringify(draft);
+		expect(json).toContain('\\ud800'); // JSON.stringify escapes a lone half (ES2019 well-formed JSON.stringify)
+		const reply = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: json, lockVersion: String(start) });
+		expect(reply.type).toBe('success');
+		const stored = (await Quote.findOne({ where: { jobId: job.id } }))!;
+		expect((stored.draft as any).options[0].label).toBe('Rebuild \ufffd');
+	});
+
 	it('a draft the engine refuses is not saved; the issues name the fields', async () => {
 		const { job } = await createJob(shop);
 		await pageData(as.writer, job.id);

@@ -9,6 +9,7 @@ import { requireRole, type AuthUser } from '$lib/server/auth/guard';
 import * as catalog from '$lib/server/catalog';
 import { UserError } from '$lib/server/errors';
 import { parseForm } from '$lib/server/forms';
+import { parseJson } from '$lib/server/json';
 import { plainNumber } from '$lib/server/validators';
 import * as jobs from '$lib/server/jobs';
 import * as quoteMail from '$lib/server/quote-mail';
@@ -93,7 +94,7 @@ export const actions: Actions = {
 		if (!parsed.ok) return fail(400, { action: 'save', message: Object.values(parsed.errors)[0] ?? parsed.message, issues: [] });
 		let draft: unknown;
 		try {
-			draft = JSON.parse(parsed.data.draft);
+			draft = parseJson(parsed.data.draft);
 		} catch {
 			return fail(400, { action: 'save', message: 'The quote could not be read. Reload the page and try again.', issues: [] });
 		}

@@ -4,6 +4,7 @@
 // Answers JSON {id, caption, showCustomer, width, height, url, thumbUrl}. DELETE: removes it (204).
 import { error, json } from '@sveltejs/kit';
 import type { RequestHandler } from './$types';
+import { readJson } from '$lib/server/json';
 import * as photos from '$lib/server/photos';
 import { pictureResponse, requireStaff } from '../http';
 
@@ -27,11 +28,17 @@ function fromForm(form: FormData): Record<string, unknown> {
 	return raw;
 }
 
-async function readInput(request: Request): Promise<unknown> {
+const UNREADABLE = 'Send the change as JSON or as a form.';
+
+async function readInput(request: Request): Promise<{ ok: true; value: unknown } | { ok: false; message: string }> {
 	const type = request.headers.get('content-type') ?? '';
-	if (/^application\/json/i.test(type)) return request.json();
-	if (/^(application\/x-www-form-urlencoded|multipart\/form-data)/i.test(type)) return fromForm(await request.formData());
-	throw new Error('unsupported');
+	if (/^application\/json/i.test(type)) return readJson(request);
+	if (!/^(application\/x-www-form-urlencoded|multipart\/form-data)/i.test(type)) return { ok: false, message: UNREADABLE };
+	try {
+		return { ok: true, value: fromForm(await request.formData()) };
+	} catch {
+		return { ok: false, message: UNREADABLE };
+	}
 }
 
 export const GET: RequestHandler = async ({ params }) => {
@@ -41,13 +48,9 @@ export const GET: RequestHandler = async ({ params }) => {
 
 export const POST: RequestHandler = async ({ params, request }) => {
 	const user = requireStaff();
-	let raw: unknown;
-	try {
-		raw = await readInput(request);
-	} catch {
-		return json({ message: 'Send the change as JSON or as a form.', issues: [] }, { status: 400 });
-	}
-	const parsed = photos.updateSchema.safeParse(raw);
+	const raw = await readInput(request);
+	if (!raw.ok) return json({ message: raw.message, issues: [] }, { status: 400 });
+	const parsed = photos.updateSchema.safeParse(raw.value);
 	if (!parsed.success) {
 		const issues = parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
 		return json({ message: issues[0]?.message ?? 'Please correct the change.', issues }, { status: 400 });
