@@ -190,8 +190,8 @@ describe('job board on more jobs than a page', () => {
 		const first = await get('q=bulk%20lot&sort=number&dir=asc');
 		expect(first).toMatchObject({ total: null, pages: null, exact: false, hasNext: true });
 		expect(first.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 25 }, (_, i) => 90001 + i));
-		// Page 2 lies among the first jobs in number order; page 3 holds the last few matches, found
-		// by sorting the matches themselves: both are the right slice of the whole sorted list.
+		// Page 2 lies within the first COUNT_LIMIT + 1 matches in number order; page 3 reaches past
+		// them to the last few: both are the right slice of the whole sorted list.
 		const middle = await get(`q=bulk%20lot&sort=number&dir=asc&per=100&page=2`);
 		expect(middle.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 100 }, (_, i) => 90101 + i));
 		expect(middle.hasNext).toBe(true);

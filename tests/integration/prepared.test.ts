@@ -19,6 +19,18 @@ describe('prepared statements', () => {
 		expect(await prepared('SELECT 1 FROM jobs WHERE complaint = :v', { v: hostile })).toEqual([]);
 	});
 
+	it('reusePlan: false runs the statement unnamed, planned for its values, and keeps nothing on the connection', async () => {
+		const text = `SELECT :n::int * 2 AS twice, 'planned each time' AS marker`;
+		for (const n of [1, 2, 3, 4, 5, 6, 7]) {
+			expect(await prepared<{ twice: number }>(text, { n }, { reusePlan: false })).toEqual([{ twice: 2 * n, marker: 'planned each time' }]);
+		}
+		// The marker goes as a value, so this statement's own text does not match itself.
+		const count = 'SELECT count(*)::int AS n FROM pg_prepared_statements WHERE strpos(statement, :marker) > 0';
+		expect((await prepared<{ n: number }>(count, { marker: 'planned each time' }))[0].n).toBe(0);
+		await prepared(text, { n: 1 });
+		expect((await prepared<{ n: number }>(count, { marker: 'planned each time' }))[0].n).toBe(1);
+	});
+
 	it('a connection keeps a bounded number of prepared statements and still runs the rest', async () => {
 		for (let i = 0; i < PREPARED_PER_CONNECTION + 20; i++) {
 			const [row] = await prepared<{ n: number }>(`SELECT :n::int + ${i} AS n`, { n: 1 });

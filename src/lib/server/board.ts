@@ -15,16 +15,14 @@ export const SORTS: Record<SortKey, string> = {
 };
 
 const NO_TECHNICIAN = '00000000-0000-0000-0000-000000000000';
-/** How far along the sort order a search's page is looked for before the matches are sorted instead. */
-const WINDOW = 2000;
-const MAX_WINDOW = 20_000;
 
 /**
  * One page of the job board plus counts per status, all in SQL on indexed, denormalised columns.
  * Counts under status and technician filters come from `job_status_counts` (kept by triggers);
  * with a search or age filter they are counted over at most COUNT_LIMIT + 1 matching jobs, and
- * beyond that the board says "more than". Every statement is prepared: its text depends only on
- * the shape of the request (which filters, which sort, page size), the values go as parameters.
+ * beyond that the board says "more than". Statement texts depend only on the shape of the request
+ * (which filters, which sort, page size); the values go as parameters. Each is prepared once per
+ * connection, except a search's, which is planned for its words every time.
  */
 export async function page(shopId: string, query: BoardQuery): Promise<BoardPage> {
 	const where: string[] = ['j.shop_id = :shopId'];
@@ -64,62 +62,42 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 			? `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${only} ORDER BY ${order} LIMIT ${limit} OFFSET :skip)) j`
 			: `(SELECT j.* ${filtered}${only} ORDER BY ${order} LIMIT ${limit} OFFSET :skip) j`;
 	};
-	const one = async <T>(sql: string) => (await prepared<T>(sql, values))[0];
+	const one = async <T>(sql: string, options?: { reusePlan: boolean }) => (await prepared<T>(sql, values, options))[0];
 
 	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
 	const counted: readonly JobStatus[] = query.status.length ? query.status : JOB_STATUSES;
 	const sumOf = (statuses: readonly JobStatus[]) => statuses.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
 
 	if (words.length || query.age) {
-		// The first COUNT_LIMIT + 1 matches counted per status and, in the same statement, the page
-		// sorted out of them — which is the page when they are all the matches there are. Matches
-		// of a search come from table rows anyway and carry every column a page shows or sorts by;
-		// an age filter alone counts from its index and looks up only the page's jobs.
-		const [carried, matched] = words.length
-			? [CARRIED, `m j WHERE true${statusFilter}`]
-			: ['j.id, j.status', `jobs j WHERE j.id IN (SELECT id FROM m)${statusFilter}`];
+		// The first matches in the sort order — enough to hold the page and one job past the count
+		// limit — with their statuses, in one statement: they are every match when no more than
+		// COUNT_LIMIT come back, and then they count per status and hold the page. The sort indexes
+		// carry every column a filter reads (migration 0011), so PostgreSQL may walk one and keep
+		// the matches from index entries alone, or find a rare word through the trigram index and
+		// sort what it finds; which is cheaper depends on the words, so a search is planned for its
+		// own values each time.
 		const order = orderBy(query.dir === 'asc');
-		const firstMatches = async (source: string) => {
+		const need = query.per + 1;
+		values.reach = Math.max(COUNT_LIMIT + 1, offset + need);
+		const kept = [...new Set(['j.id', 'j.status', SORTS[query.sort]])].join(', ');
+		const firstMatches = async (only: string) => {
 			const found = await one<{ counts: Partial<Record<JobStatus, number>> | null; page: BoardRow[] | null }>(
-				`WITH m AS MATERIALIZED (SELECT ${carried} ${source} LIMIT ${COUNT_LIMIT + 1})
+				`WITH m AS MATERIALIZED (SELECT ${kept} ${filtered}${only} ORDER BY ${order} LIMIT :reach)
 				 SELECT (SELECT json_object_agg(status, n) FROM (SELECT status, count(*)::int AS n FROM m GROUP BY status) c) AS counts,
-				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM ${matched} ORDER BY ${order} LIMIT ${query.per} OFFSET :offset) j`, order)}) p
-				          WHERE (SELECT count(*) FROM m) <= ${COUNT_LIMIT}) AS page`
+				        (SELECT json_agg(p) FROM (${pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (
+				          SELECT j.id FROM m j WHERE true${statusFilter} ORDER BY ${order} LIMIT ${need} OFFSET :offset)) j`, order)}) p) AS page`,
+				{ reusePlan: words.length === 0 }
 			);
 			const perStatus = found.counts ?? {};
 			return { counts: perStatus, matched: Object.values(perStatus).reduce((sum: number, n) => sum + (n ?? 0), 0), page: found.page ?? [] };
 		};
-		const all = await firstMatches(filtered);
+		const all = await firstMatches('');
 		Object.assign(counts, all.counts);
 		if (all.matched <= COUNT_LIMIT) return answer(query, all.page, sumOf(counted), true, counts);
-		// Too many to count; the status filter alone may still bring the total under the limit.
-		if (query.status.length) {
-			const selected = await firstMatches(filtered + statusFilter);
-			if (selected.matched <= COUNT_LIMIT) return answer(query, selected.page, selected.matched, false, counts);
-		}
-		// Many matches, so the page most likely lies among the first jobs in the sort order: a
-		// window of them read along the sort key's index and filtered, one row past the page to
-		// tell whether another follows.
-		const need = query.per + 1;
-		const window = Math.max(WINDOW, 20 * (offset + need));
-		if (window <= MAX_WINDOW) {
-			values.window = window;
-			const rows = await prepared<BoardRow>(
-				pageOf(`(SELECT j.* FROM (SELECT j.* FROM jobs j WHERE j.shop_id = :shopId ORDER BY ${order} LIMIT :window) j
-				  WHERE ${where.join(' AND ')}${statusFilter} ORDER BY ${order} LIMIT ${need} OFFSET :offset) j`, order),
-				values
-			);
-			if (rows.length === need) return answer(query, rows, null, false, counts);
-		}
-		// The matches sit further along (a search for the very thing the board is sorted by, a deep
-		// page): sort the matches themselves.
-		const rows = await prepared<BoardRow>(
-			pageOf(`(SELECT j.* FROM jobs j WHERE j.id IN (
-			  WITH m AS MATERIALIZED (SELECT j.id, ${SORTS[query.sort]} ${filtered}${statusFilter})
-			  SELECT j.id FROM m j ORDER BY ${order} LIMIT ${need} OFFSET :offset)) j`, order),
-			values
-		);
-		return answer(query, rows, null, false, counts);
+		if (!query.status.length) return answer(query, all.page, null, false, counts);
+		// Too many to count across all statuses; those selected may still come under the limit.
+		const selected = await firstMatches(statusFilter);
+		return answer(query, selected.page, selected.matched <= COUNT_LIMIT ? selected.matched : null, false, counts);
 	}
 
 	values.techKey = query.tech === 'none' ? NO_TECHNICIAN : query.tech;
@@ -171,10 +149,6 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		return fromEnd ? rows.reverse() : rows;
 	}
 }
-
-/** The jobs columns that COLUMNS shows and SORTS sorts by. */
-const CARRIED = `j.id, j.number, j.status, j.complaint, j.customer_name, j.unit_label, j.unit_id, j.technician_name,
-	j.promised_on, j.created_at, j.status_changed_at`;
 
 const COLUMNS = `j.id, j.number, j.status, left(j.complaint, 160) AS complaint, j.customer_name AS customer,
 	j.unit_label AS unit, u.kind, u.serial, j.technician_name AS technician,

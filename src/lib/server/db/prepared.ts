@@ -10,24 +10,28 @@ import { RETRYABLE, db, sqlLog } from '.';
  * `sql` takes `:name` placeholders filled from `values`, sent as parameters, never spliced in. The
  * text should vary only with the shape of a request, not its values; even so a connection keeps at
  * most PREPARED_PER_CONNECTION statements, and past that runs new texts unprepared.
+ *
+ * `reusePlan: false` runs the statement unnamed, so PostgreSQL plans it for these very values each
+ * time: for a statement whose best plan depends on them (a search for a rare serial number wants
+ * the trigram index; one for a word in half the jobs wants to walk the sort order).
  */
 export const PREPARED_PER_CONNECTION = 200;
 const preparedOn = new WeakMap<object, Set<string>>();
 
-export async function prepared<T>(sql: string, values: Record<string, unknown>): Promise<T[]> {
+export async function prepared<T>(sql: string, values: Record<string, unknown>, { reusePlan = true } = {}): Promise<T[]> {
 	const { text, params } = positional(sql, values);
 	const { name } = compiled(sql);
 	const sequelize = db();
 	const connections = sequelize.connectionManager;
 	const log = sqlLog();
-	if (log) log(`Executing (prepared ${name}): ${text} ${JSON.stringify(params)}`);
+	if (log) log(`Executing (${reusePlan ? `prepared ${name}` : 'planned for its values'}): ${text} ${JSON.stringify(params)}`);
 	for (let attempt = 1; ; attempt++) {
 		let client: (pg.Client & { _invalid?: boolean }) | undefined;
 		try {
 			client = (await connections.getConnection({ type: 'read' })) as unknown as pg.Client & { _invalid?: boolean };
 			let names = preparedOn.get(client);
 			if (!names) preparedOn.set(client, (names = new Set()));
-			const keep = names.has(name) || names.size < PREPARED_PER_CONNECTION;
+			const keep = reusePlan && (names.has(name) || names.size < PREPARED_PER_CONNECTION);
 			const result = await client.query<T & pg.QueryResultRow>(keep ? { name, text, values: params } : { text, values: params });
 			if (keep) names.add(name);
 			return result.rows;
