@@ -8,7 +8,10 @@ function wellFormed(value: unknown): unknown {
 	if (Array.isArray(value)) return value.map(wellFormed);
 	if (value !== null && typeof value === 'object') {
 		const out: Record<string, unknown> = {};
-		for (const [key, inner] of Object.entries(value)) out[key.toWellFormed()] = wellFormed(inner);
+		// Defined, not assigned: a "__proto__" key stays an own property, as JSON.parse leaves it.
+		for (const [key, inner] of Object.entries(value)) {
+			Object.defineProperty(out, key.toWellFormed(), { value: wellFormed(inner), enumerable: true, writable: true, configurable: true });
+		}
 		return out;
 	}
 	return value;
