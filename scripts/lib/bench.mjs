@@ -5,6 +5,7 @@ import path from 'node:path';
 import {
 	buildDir, database, dbTask, ensureDependencies, freePort, log, root, run, startChild, tsx, waitForHttp
 } from './bootstrap.mjs';
+import { percentile } from './load.mjs';
 
 export async function benchServer({ extraEnv = {} } = {}) {
 	ensureDependencies();
@@ -39,8 +40,6 @@ export async function benchServer({ extraEnv = {} } = {}) {
 		}
 	};
 }
-
-const percentile = (sorted, p) => sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
 
 /**
  * Runs one route at `connections` concurrent requests for `seconds`; exact p50/p95/p99. A second

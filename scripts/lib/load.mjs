@@ -3,7 +3,8 @@
 // while staff browse the job board and the pricing route is hammered with autocannon. Loopback
 // only; every loop stops at the deadline. Latencies are recorded per request, so p50/p99 are exact.
 
-const percentile = (sorted, p) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : 0);
+/** The p-th percentile of ascending latencies by the nearest-rank method; 0 for none. */
+export const percentile = (sorted, p) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] : 0);
 
 /** @typedef {{ route: string, requests: number, rps: number, p50: number, p99: number, errors: number, errorKinds: string }} Row */
 
