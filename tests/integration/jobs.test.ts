@@ -1,9 +1,13 @@
+import { QueryTypes } from 'sequelize';
 import { beforeAll, describe, expect, it } from 'vitest';
+import { db } from '../../src/lib/server/db';
+import * as repairTimestamps from '../../src/lib/server/db/migrations/20261202-0012-repair-timestamps';
+import * as jobs from '../../src/lib/server/jobs';
 import { AuditEvent, Job, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
 import { judge } from '../../src/lib/server/readings';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
-import { createJob } from '../helpers/shopdata';
+import { actor, createJob } from '../helpers/shopdata';
 
 let shop: ShopFixture;
 let other: ShopFixture;
@@ -181,5 +185,43 @@ describe('shop isolation for every id', () => {
 		for (const path of ['/jobs/00000000-0000-4000-8000-000000000000', '/jobs/not-a-uuid', '/customers/%27%3B--', '/units/123', '/specs/zzz']) {
 			expect((await as.owner.get(path)).status, path).toBe(404);
 		}
+	});
+});
+
+describe('creation and change times', () => {
+	it('a save moves updated_at and leaves created_at where it was', async () => {
+		const { job, customer } = await createJob(shop);
+		await db().query(`UPDATE jobs SET created_at = '2026-11-30T12:12:00Z', updated_at = '2026-11-30T12:12:00Z' WHERE id = :id`, { replacements: { id: job.id } });
+		await jobs.transition(actor(shop, 'technician'), job.id, 'diagnosing');
+		const after = (await Job.findByPk(job.id))!;
+		expect(after.createdAt.toISOString()).toBe('2026-11-30T12:12:00.000Z');
+		expect(after.updatedAt.getTime()).toBeGreaterThan(Date.parse('2026-12-01T00:00:00Z'));
+		await db().query(`UPDATE customers SET created_at = '2026-11-30T12:12:00Z', updated_at = '2026-11-30T12:12:00Z' WHERE id = :id`, { replacements: { id: customer.id } });
+		await customer.reload();
+		await customer.update({ notes: 'Calls before noon' });
+		const [row] = await db().query<{ created: Date; updated: Date }>('SELECT created_at AS created, updated_at AS updated FROM customers WHERE id = :id', {
+			replacements: { id: customer.id },
+			type: QueryTypes.SELECT
+		});
+		expect(new Date(row.created).toISOString()).toBe('2026-11-30T12:12:00.000Z');
+		expect(new Date(row.updated).getTime()).toBeGreaterThan(Date.parse('2026-12-01T00:00:00Z'));
+	});
+
+	it('migration 0012 gives back creation times that saves had moved, a job its check-in time from the audit trail', async () => {
+		const { job, customer } = await createJob(shop);
+		const checkedIn = (await AuditEvent.findOne({ where: { shopId: shop.id, entityId: job.id, action: 'job.status' }, order: [['createdAt', 'ASC']] }))!.createdAt;
+		// As the shared column definition left them: created_at at the last save, updated_at at the insert.
+		await db().query(`UPDATE jobs SET created_at = now() + interval '2 days', updated_at = now() + interval '1 day' WHERE id = :id`, { replacements: { id: job.id } });
+		await db().query(`UPDATE customers SET created_at = '2026-12-01T10:00:00Z', updated_at = '2026-11-20T09:00:00Z' WHERE id = :id`, { replacements: { id: customer.id } });
+		await repairTimestamps.up({ context: db() } as never);
+		const repairedJob = (await Job.findByPk(job.id))!;
+		expect(repairedJob.createdAt.toISOString()).toBe(checkedIn.toISOString());
+		expect(repairedJob.updatedAt.getTime()).toBeGreaterThan(Date.now() + 1.9 * 86_400_000);
+		const [c] = await db().query<{ created: Date; updated: Date }>('SELECT created_at AS created, updated_at AS updated FROM customers WHERE id = :id', {
+			replacements: { id: customer.id },
+			type: QueryTypes.SELECT
+		});
+		expect(new Date(c.created).toISOString()).toBe('2026-11-20T09:00:00.000Z');
+		expect(new Date(c.updated).toISOString()).toBe('2026-12-01T10:00:00.000Z');
 	});
 });

@@ -6,7 +6,8 @@ import * as devalue from 'devalue';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { carriesCosts } from '../../src/lib/components/quote/costs';
 import { evaluateRequest } from '../../src/lib/pricing/evaluate';
-import { Job, Part, Quote, QuoteLink, QuoteVersion, Shop } from '../../src/lib/server/db/models';
+import { AuditEvent, Job, Part, Quote, QuoteLink, QuoteVersion, Shop } from '../../src/lib/server/db/models';
+import { db } from '../../src/lib/server/db';
 import * as settings from '../../src/lib/server/settings';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -226,6 +227,24 @@ describe('versions', () => {
 		const { data } = await pageData(as.writer, job.id);
 		expect(data.versions.map((v: { number: number }) => v.number)).toEqual([2, 1]);
 		expect(data.openLinks).toBe(3);
+	});
+
+	it('sending again leaves the job where it is: no step back to diagnosing, the opened time untouched', async () => {
+		const { job } = await createJob(shop);
+		await db().query(`UPDATE jobs SET created_at = '2026-11-30T12:12:00Z' WHERE id = :id`, { replacements: { id: job.id } });
+		await pageData(as.writer, job.id);
+		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+		expect((await action(as.writer, `/jobs/${job.id}/quote?/send`)).type).toBe('success');
+		const moves = async () =>
+			(await AuditEvent.findAll({ where: { shopId: shop.id, entityId: job.id, action: 'job.status' }, order: [['createdAt', 'ASC'], ['id', 'ASC']] })).map(
+				(e) => `${(e.detail as { from: string }).from}>${(e.detail as { to: string }).to}`
+			);
+		expect(await moves()).toEqual(['null>checked_in', 'checked_in>diagnosing', 'diagnosing>quoted']);
+		expect((await action(as.writer, `/jobs/${job.id}/quote?/send`)).type).toBe('success');
+		expect(await moves()).toEqual(['null>checked_in', 'checked_in>diagnosing', 'diagnosing>quoted']);
+		const after = (await Job.findByPk(job.id))!;
+		expect(after.status).toBe('quoted');
+		expect(after.createdAt.toISOString()).toBe('2026-11-30T12:12:00.000Z');
 	});
 
 	it('the desk withdraws the customer links; a technician may not', async () => {

@@ -187,10 +187,10 @@ export async function send(actor: Actor, jobId: string) {
 			},
 			{ transaction }
 		);
-		for (const step of ['diagnosing', 'quoted'] as const) {
-			const current = (await Job.findByPk(job.id, { transaction }))!.status;
-			if (current !== step && jobs.movesFor(current as JobStatus, 'owner').includes(step)) await jobs.transition(actor, job.id, step, transaction);
-		}
+		// Forward only: a checked-in job goes through diagnosing to quoted; a quoted one stays put
+		// (sending again must not walk it back to diagnosing and forward again).
+		const forward: Partial<Record<JobStatus, JobStatus[]>> = { checked_in: ['diagnosing', 'quoted'], diagnosing: ['quoted'] };
+		for (const step of forward[job.status as JobStatus] ?? []) await jobs.transition(actor, job.id, step, transaction);
 		await audit.record(
 			{ shopId: actor.shopId, userId: actor.id, action: 'quote.sent', entity: 'job', entityId: job.id, detail: { version: version.number, hash: version.contentHash } },
 			transaction

@@ -9,7 +9,11 @@ export const id = { type: DataTypes.UUID, defaultValue: DataTypes.UUIDV4, primar
 /** A reference to another row (a uuid), required unless `allowNull`. */
 export const ref = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
 export const shopId = ref();
-/** A required timestamp; models use it for updatedAt too. */
-export const createdAt = { type: DataTypes.DATE, allowNull: false };
+/*
+ * Timestamps, each naming its column: Sequelize writes the column name into the definition object
+ * it is given, so one object shared by createdAt and updatedAt made both write created_at.
+ */
+export const createdAt = { type: DataTypes.DATE, allowNull: false, field: 'created_at' };
+export const updatedAt = { type: DataTypes.DATE, allowNull: false, field: 'updated_at' };
 /** Required text, empty by default; VARCHAR(length) when a length is given. */
 export const text = (length?: number) => ({ type: length ? DataTypes.STRING(length) : DataTypes.TEXT, allowNull: false, defaultValue: '' });

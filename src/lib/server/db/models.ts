@@ -8,7 +8,7 @@ import {
 	type Sequelize
 } from 'sequelize';
 import type { CONDITIONS, FUELS, JobStatus, ReadingResult, UnitKind, VOLTAGES } from '../../domain';
-import { createdAt, id, ref, shopId, text, type Numeric } from './columns';
+import { createdAt, id, ref, shopId, text, type Numeric, updatedAt } from './columns';
 
 export const ROLES = ['owner', 'manager', 'writer', 'technician'] as const;
 export type Role = (typeof ROLES)[number];
@@ -302,7 +302,7 @@ export function initModels(sequelize: Sequelize): void {
 			settings: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
 			nextJobNumber: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1001 },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'shops' }
 	);
@@ -316,7 +316,7 @@ export function initModels(sequelize: Sequelize): void {
 			passwordHash: { type: DataTypes.TEXT, allowNull: false },
 			active: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'users' }
 	);
@@ -379,7 +379,7 @@ export function initModels(sequelize: Sequelize): void {
 			notes: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
 			searchText: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'customers' }
 	);
@@ -403,12 +403,12 @@ export function initModels(sequelize: Sequelize): void {
 			condition: { type: DataTypes.STRING(12), allowNull: false, defaultValue: 'good' },
 			notes: text(),
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'units' }
 	);
 	SpecSheet.init(
-		{ id, shopId, name: { type: DataTypes.STRING(120), allowNull: false }, appliesTo: text(200), notes: text(), createdAt, updatedAt: createdAt },
+		{ id, shopId, name: { type: DataTypes.STRING(120), allowNull: false }, appliesTo: text(200), notes: text(), createdAt, updatedAt },
 		{ sequelize, tableName: 'spec_sheets' }
 	);
 	SpecItem.init(
@@ -448,7 +448,7 @@ export function initModels(sequelize: Sequelize): void {
 			createdBy: ref(true),
 			statusChangedAt: { type: DataTypes.DATE, allowNull: false, defaultValue: DataTypes.NOW },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'jobs' }
 	);
@@ -500,12 +500,12 @@ export function initModels(sequelize: Sequelize): void {
 			stock: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
 			specialOrder: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'parts' }
 	);
 	LabourOperation.init(
-		{ id, shopId, name: { type: DataTypes.STRING(120), allowNull: false }, hours: numeric(6, 2, false), createdAt, updatedAt: createdAt },
+		{ id, shopId, name: { type: DataTypes.STRING(120), allowNull: false }, hours: numeric(6, 2, false), createdAt, updatedAt },
 		{ sequelize, tableName: 'labour_operations' }
 	);
 	ReplacementUnit.init(
@@ -519,7 +519,7 @@ export function initModels(sequelize: Sequelize): void {
 			lifeYears: numeric(5, 1, false),
 			lifeHours: numeric(8, 0, false),
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'replacement_units' }
 	);
@@ -535,7 +535,7 @@ export function initModels(sequelize: Sequelize): void {
 			editedSinceSend: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true },
 			updatedBy: ref(true),
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'quotes' }
 	);

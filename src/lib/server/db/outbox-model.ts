@@ -7,7 +7,7 @@ import {
 	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
-import { createdAt, id, ref, shopId, text } from './columns';
+import { createdAt, id, ref, shopId, text, updatedAt } from './columns';
 import type { Job, Shop } from './models';
 
 export const OUTBOX_STATUSES = ['queued', 'sending', 'sent', 'failed'] as const;
@@ -74,7 +74,7 @@ export function initOutboxModel(sequelize: Sequelize): void {
 			smtpResponse: { type: DataTypes.STRING(300), allowNull: true },
 			sentAt: { type: DataTypes.DATE, allowNull: true },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'outbox_messages' }
 	);

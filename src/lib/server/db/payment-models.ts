@@ -7,7 +7,7 @@ import {
 	type InferCreationAttributes,
 	type Sequelize
 } from 'sequelize';
-import { createdAt, id, ref, type Numeric } from './columns';
+import { createdAt, id, ref, type Numeric, updatedAt } from './columns';
 import type { Job, Quote, Shop, User } from './models';
 
 export const PAYMENT_KINDS = ['deposit', 'balance'] as const;
@@ -99,7 +99,7 @@ export function initPaymentModels(sequelize: Sequelize): void {
 			createdBy: ref(true),
 			paidAt: { type: DataTypes.DATE, allowNull: true },
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'payments' }
 	);
@@ -115,7 +115,7 @@ export function initPaymentModels(sequelize: Sequelize): void {
 			status: { type: DataTypes.STRING(10), allowNull: false, defaultValue: 'succeeded' },
 			createdBy: ref(true),
 			createdAt,
-			updatedAt: createdAt
+			updatedAt
 		},
 		{ sequelize, tableName: 'refunds' }
 	);
