@@ -205,7 +205,8 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 		if (!priced.ok) throw new Error(`demo history quote did not price: ${priced.message}`);
 
 		const opened = plan.openedAt;
-		const firstSent = new Date(opened.getTime() + random.between(0.3, 3) * DAY);
+		// Nothing in the story happens after now: each later step is cut off at the present.
+		const firstSent = new Date(Math.min(opened.getTime() + random.between(0.3, 3) * DAY, now.getTime() - 3_600_000));
 		const age = now.getTime() - opened.getTime();
 		jobRows.push({
 			shopId, number: firstNumber + i, unitId: unit.id, customerId: unit.customerId, complaint: template.complaint, status: 'picked_up',
@@ -223,12 +224,14 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 		if (age < 4 * DAY && random.chance(0.6)) {
 			statusPaths.push({ jobIndex: i, steps });
 			jobRows[i].status = 'quoted';
+			jobRows[i].statusChangedAt = firstSent;
 			return;
 		}
 		let sentAt = firstSent;
 		// Some customers ask for a second look before answering: a second version, same options.
-		if (random.chance(0.12)) {
-			sentAt = new Date(firstSent.getTime() + random.between(1, 4) * DAY);
+		const secondSent = random.chance(0.12) ? new Date(firstSent.getTime() + random.between(1, 4) * DAY) : null;
+		if (secondSent && secondSent.getTime() < now.getTime()) {
+			sentAt = secondSent;
 			const second = { ...content, unit: { ...draft.unit, asIsValue: '25' } };
 			const repriced = evaluateRequest(second);
 			if (!repriced.ok) throw new Error(`demo history quote did not price: ${repriced.message}`);
@@ -236,6 +239,12 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 			quoteRows[i].sentVersions = 2;
 		}
 		const decidedAt = new Date(sentAt.getTime() + Math.min(20, -Math.log(1 - random.next()) * 2.2 + 0.1) * DAY);
+		if (decidedAt.getTime() >= now.getTime()) {
+			statusPaths.push({ jobIndex: i, steps });
+			jobRows[i].status = 'quoted';
+			jobRows[i].statusChangedAt = firstSent;
+			return;
+		}
 		const oldUnit = (unit.condition === 'poor' || unit.condition === 'fair') && random.chance(0.45);
 		const roll = random.next();
 		const outcome = roll < 0.16 ? 'declined' : oldUnit || roll > 0.9 ? 'replaced' : 'repaired';
@@ -249,11 +258,12 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 		});
 		steps.push({ to: outcome === 'declined' ? 'declined' : 'approved', at: decidedAt, by: null });
 		if (outcome === 'declined') {
-			steps.push({ to: 'picked_up', at: new Date(decidedAt.getTime() + random.between(1, 5) * DAY), by: staff.writer });
+			const collected = new Date(decidedAt.getTime() + random.between(1, 5) * DAY);
+			if (collected.getTime() < now.getTime()) steps.push({ to: 'picked_up', at: collected, by: staff.writer });
 		} else {
 			const started = new Date(decidedAt.getTime() + random.between(0.5, outcome === 'repaired' && template.lines.some((l) => l.specialOrder) ? 7 : 2) * DAY);
 			const finished = new Date(started.getTime() + random.between(0.2, 2) * DAY);
-			steps.push({ to: 'in_repair', at: started, by: technician });
+			if (started.getTime() < now.getTime()) steps.push({ to: 'in_repair', at: started, by: technician });
 			if (finished.getTime() < now.getTime()) steps.push({ to: 'ready', at: finished, by: technician });
 			const handedBack = new Date(finished.getTime() + random.between(0.5, 4) * DAY);
 			if (handedBack.getTime() < now.getTime()) steps.push({ to: 'picked_up', at: handedBack, by: staff.writer });
