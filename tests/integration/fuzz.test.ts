@@ -119,7 +119,7 @@ export const JSON_ROUTES: JsonCase[] = [
 	{ name: 'payments csv', method: 'GET', path: () => '/payments/payments.csv', who: 'owner', valid: () => ({ status: 'paid', kind: 'deposit', method: 'cash', from: '2026-01-01', to: '2030-01-01', job: '1' }), numeric: ['job'], page: true },
 	{ name: 'quote parts', method: 'GET', path: (w) => `/jobs/${w.jobId}/quote/parts`, who: 'owner', valid: () => ({ q: 'brush' }) },
 	{ name: 'board page', method: 'GET', path: () => '/jobs', who: 'owner', valid: () => ({ q: 'harrowgate', status: 'quoted', page: '2' }), page: true },
-	{ name: 'customers page', method: 'GET', path: () => '/customers', who: 'owner', valid: () => ({ q: 'yarrow' }), page: true },
+	{ name: 'customers page', method: 'GET', path: () => '/customers', who: 'owner', valid: () => ({ q: 'yarrow', page: '2' }), page: true },
 	{ name: 'catalog page', method: 'GET', path: () => '/catalog', who: 'owner', valid: () => ({ q: 'brush', done: 'saved' }), page: true },
 	{ name: 'payments page', method: 'GET', path: () => '/payments', who: 'owner', valid: () => ({ status: 'paid', from: '2026-01-01', job: '2' }), page: true },
 	{ name: 'reports page', method: 'GET', path: () => '/reports', who: 'owner', valid: () => reportQuery, page: true },

@@ -3,7 +3,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
 import * as repairTimestamps from '../../src/lib/server/db/migrations/20261202-0012-repair-timestamps';
 import * as jobs from '../../src/lib/server/jobs';
-import { AuditEvent, Job, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
+import { AuditEvent, Customer, Job, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
 import { judge } from '../../src/lib/server/readings';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -42,6 +42,8 @@ describe('customers, units and check-in', () => {
 		expect(ticket.status).toBe(200);
 		expect(ticket.text).toContain(`#${a!.number}`);
 		expect(ticket.text).toContain('Linnea Harrow');
+		expect(ticket.text).toContain('$89.00'); // the fee in the shop's currency, as the customer signs it
+		expect((await as.writer.get(`/jobs/${a!.id}`)).text).toContain('Diagnostic fee $89.00');
 	});
 
 	it('bad unit and check-in input is refused field by field and nothing is saved', async () => {
@@ -223,5 +225,35 @@ describe('creation and change times', () => {
 		});
 		expect(new Date(c.created).toISOString()).toBe('2026-11-20T09:00:00.000Z');
 		expect(new Date(c.updated).toISOString()).toBe('2026-12-01T10:00:00.000Z');
+	});
+});
+
+describe('the customer list', () => {
+	it('pages through every customer with a count, newest first or by name for a search, and an odd page falls back', async () => {
+		const many = await createShop('Many customers');
+		const owner = await signedIn(many.staff.owner.email, many.staff.owner.password);
+		await Customer.bulkCreate(
+			Array.from({ length: 55 }, (_, i) => {
+				const name = `Pager ${String(i).padStart(2, '0')}`;
+				return { shopId: many.id, name, phone: `555-01${String(i).padStart(2, '0')}`, searchText: name.toLowerCase(), createdAt: new Date(Date.UTC(2026, 10, 1, 0, i)) };
+			})
+		);
+		const names = (html: string) => [...html.matchAll(/>(Pager \d\d)</g)].map((m) => m[1]); // the list, not the page data
+		const first = await owner.get('/customers');
+		expect(first.text).toContain('55 customers · page 1 of 2');
+		expect(names(first.text)).toHaveLength(50);
+		expect(names(first.text)[0]).toBe('Pager 54'); // newest first
+		const second = await owner.get('/customers?page=2');
+		expect(names(second.text)).toEqual(['Pager 04', 'Pager 03', 'Pager 02', 'Pager 01', 'Pager 00']);
+		const search = await owner.get('/customers?q=pager%205&page=1');
+		expect(search.text).toContain('5 customers matching');
+		expect(names(search.text)).toEqual(['Pager 50', 'Pager 51', 'Pager 52', 'Pager 53', 'Pager 54']);
+		for (const odd of ['0', '-3', 'x', '2.5', '999']) {
+			const reply = await owner.get(`/customers?page=${odd}`);
+			expect(reply.status, odd).toBe(200);
+			expect(names(reply.text).length, odd).toBeGreaterThan(0);
+		}
+		expect(names((await owner.get('/customers')).text).some((n) => n.startsWith('Pager'))).toBe(true);
+		expect((await as.owner.get('/customers?q=pager')).text).not.toContain('Pager 00'); // another shop's list
 	});
 });

@@ -48,15 +48,22 @@ export function get(shopId: string, id: string) {
 	return Customer.findOne({ where: { id, shopId } });
 }
 
-/** Name, phone, e-mail or address containing the words typed; newest first when empty. */
-export async function search(shopId: string, query: string, limit = 50) {
+export const CUSTOMERS_PER_PAGE = 50;
+
+/**
+ * One page of the shop's customers with the total: those whose name, phone, e-mail or address
+ * contains the text typed, by name; newest first when nothing is typed.
+ */
+export async function search(shopId: string, query: string, page = 1) {
 	const q = query.trim().toLowerCase().slice(0, 100);
-	return Customer.findAll({
+	const { rows, count } = await Customer.findAndCountAll({
 		where: q ? { shopId, searchText: { [Op.like]: `%${q.replace(/[\\%_]/g, (m) => '\\' + m)}%` } } : { shopId },
-		order: q ? [['name', 'ASC']] : [['createdAt', 'DESC']],
-		limit,
+		order: q ? [['name', 'ASC'], ['id', 'ASC']] : [['createdAt', 'DESC'], ['name', 'ASC'], ['id', 'ASC']],
+		limit: CUSTOMERS_PER_PAGE,
+		offset: (Math.max(1, Math.floor(page)) - 1) * CUSTOMERS_PER_PAGE,
 		attributes: ['id', 'name', 'phone', 'email', 'address']
 	});
+	return { rows, total: count, pages: Math.max(1, Math.ceil(count / CUSTOMERS_PER_PAGE)) };
 }
 
 /** A customer with their units and each unit's jobs (newest first). */

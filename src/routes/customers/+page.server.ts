@@ -8,11 +8,18 @@ import { echo, parseForm } from '$lib/server/forms';
 export const load: PageServerLoad = async ({ url }) => {
 	const user = requireRole(STAFF);
 	const q = url.searchParams.get('q') ?? '';
-	const found = await customers.search(user.shopId, q);
+	// An odd page number falls back to the first page rather than failing.
+	const asked = Number(url.searchParams.get('page') ?? '1');
+	const page = Number.isInteger(asked) && asked >= 1 && asked <= 100_000 ? asked : 1;
+	let found = await customers.search(user.shopId, q, page);
+	if (page > found.pages) found = await customers.search(user.shopId, q, found.pages);
 	return {
 		q,
+		page: Math.min(page, found.pages),
+		pages: found.pages,
+		total: found.total,
 		canCreate: FRONT_DESK.includes(user.role),
-		customers: found.map((c) => ({ id: c.id, name: c.name, phone: c.phone, email: c.email, address: c.address }))
+		customers: found.rows.map((c) => ({ id: c.id, name: c.name, phone: c.phone, email: c.email, address: c.address }))
 	};
 };
 

@@ -1,6 +1,8 @@
 import { error, fail } from '@sveltejs/kit';
+import { Decimal } from 'decimal.js';
 import { z } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
+import { formatMoney } from '$lib/pricing/money';
 import { BENCH, FRONT_DESK, MANAGERS, STAFF } from '$lib/roles';
 import { attempt } from '$lib/server/actions';
 import { requireRole } from '$lib/server/auth/guard';
@@ -9,6 +11,7 @@ import { echo, parseForm } from '$lib/server/forms';
 import * as jobs from '$lib/server/jobs';
 import * as photos from '$lib/server/photos';
 import * as readings from '$lib/server/readings';
+import * as settings from '$lib/server/settings';
 import * as specs from '$lib/server/specs';
 
 const optionalId = z.object({
@@ -22,13 +25,14 @@ export const load: PageServerLoad = async ({ params }) => {
 	const found = await jobs.detail(user.shopId, params.id);
 	if (!found) error(404, 'No such job in your shop.');
 	const { job, unit, customer, technician } = found;
-	const [taken, sheets, sheet, history, techs, pictures] = await Promise.all([
+	const [taken, sheets, sheet, history, techs, pictures, shop] = await Promise.all([
 		readings.list(user.shopId, job.id),
 		specs.list(user.shopId),
 		job.specSheetId ? specs.get(user.shopId, job.specSheetId) : null,
 		jobs.history(user.shopId, job.id),
 		jobs.technicians(user.shopId),
-		photos.list(user.shopId, job.id)
+		photos.list(user.shopId, job.id),
+		settings.get(user.shopId)
 	]);
 	const quote = await Quote.findOne({ where: { shopId: user.shopId, jobId: job.id }, attributes: ['id', 'editedSinceSend'] });
 	const sent = quote ? await QuoteVersion.findAll({ where: { shopId: user.shopId, quoteId: quote.id }, attributes: ['number', 'sentAt', 'validUntil'], order: [['number', 'DESC']] }) : [];
@@ -41,7 +45,7 @@ export const load: PageServerLoad = async ({ params }) => {
 		job: {
 			id: job.id, number: job.number, status: job.status, complaint: job.complaint, diagnosticFee: job.diagnosticFee,
 			promisedOn: job.promisedOn, failedComponent: job.failedComponent, findings: job.findings, lockVersion: job.lockVersion,
-			specSheetId: job.specSheetId, openedAt: job.createdAt.toISOString()
+			specSheetId: job.specSheetId, openedAt: job.createdAt.toISOString(), diagnosticFeeText: formatMoney(new Decimal(job.diagnosticFee), shop.currency)
 		},
 		unit: { id: unit.id, kind: unit.kind, maker: unit.maker, model: unit.model, serial: unit.serial, runningWatts: unit.runningWatts, voltage: unit.voltage, engineHours: unit.engineHours },
 		customer: { id: customer.id, name: customer.name, phone: customer.phone, email: customer.email },
