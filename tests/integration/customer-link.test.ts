@@ -1,6 +1,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { Approval, Job, QuoteLink, QuoteVersion } from '../../src/lib/server/db/models';
 import { evaluateRequest } from '../../src/lib/pricing/evaluate';
+import { forCustomer } from '../../src/lib/server/customer-view';
 import * as quotes from '../../src/lib/server/quotes';
 import * as settings from '../../src/lib/server/settings';
 import { Client } from '../helpers/client';
@@ -120,5 +121,23 @@ describe('customer link', () => {
 		const photo = await new Client().get(`/q/${mine.token}/photos/${theirs.job.id}`);
 		expect(photo.status).toBe(404);
 		expect((await settings.get(shop.id)).pricing.currency).toBe('USD');
+	});
+});
+
+describe('the reasons the customer reads', () => {
+	it('keep every fact once, drop sentences that repeat the verdict and the shop\'s rule of thumb, and speak to the customer', () => {
+		const priced = evaluateRequest({ currency: 'USD', diagnosticFee: '89.00', ...sampleDraft() });
+		expect(priced.ok).toBe(true);
+		if (!priced.ok) return;
+		const engine = [...priced.result.recommendation.reasons, ...priced.result.repairs.flatMap((r) => r.reasons)];
+		// The engine's own words, which the customer page rewrites; if they change, so must forCustomer.
+		expect(engine.some((r) => r.includes("the shop's guide is to repair below"))).toBe(true);
+		expect(engine.some((r) => r.includes("the customer's preference decides"))).toBe(true);
+		const shown = forCustomer([...engine, engine[0], 'The repair costs more than that, so replacing the unit is the better buy.']);
+		expect(new Set(shown).size).toBe(shown.length);
+		expect(shown.some((r) => /better buy\.$/.test(r))).toBe(false);
+		expect(shown.join(' ')).not.toMatch(/shop's guide|the customer's/);
+		expect(shown).toContain(engine.find((r) => r.startsWith('The repair is ') && r.includes('of the price of a new unit'))!.replace(/; the shop's guide.*$/, '.'));
+		expect(shown.some((r) => r.includes('your preference decides'))).toBe(true);
 	});
 });

@@ -75,8 +75,7 @@ export async function customerView(found: Found) {
 		})),
 		comparison: {
 			verdict: VERDICT_WORDS[result.recommendation.verdict],
-			reasons: [...result.recommendation.reasons, ...result.repairs.flatMap((r) => r.reasons)],
-			breakEven: result.repairs.map((r) => (r.comparison ? { label: r.label, worth: money(r.comparison.breakEvenRepair) } : null)).filter(Boolean)
+			reasons: forCustomer([...result.recommendation.reasons, ...result.repairs.flatMap((r) => r.reasons)])
 		},
 		approval: found.approval
 			? {
@@ -88,4 +87,16 @@ export async function customerView(found: Found) {
 				}
 			: null
 	};
+}
+
+/**
+ * The engine's reasons as the customer reads them: each once, without a sentence that only says
+ * again the verdict shown above it, in the customer's own voice, and without the shop's internal
+ * rule of thumb (the fact it is measured on stays).
+ */
+export function forCustomer(reasons: string[]): string[] {
+	const shown = reasons
+		.filter((reason) => !/is the better buy\.$/.test(reason))
+		.map((reason) => reason.replace(/; the shop's guide is to repair below [\d.]+%\.$/, '.').replace("the customer's preference decides", 'your preference decides'));
+	return [...new Set(shown)];
 }
