@@ -3,7 +3,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
 import * as repairTimestamps from '../../src/lib/server/db/migrations/20261202-0012-repair-timestamps';
 import * as jobs from '../../src/lib/server/jobs';
-import { AuditEvent, Customer, Job, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
+import { AuditEvent, Customer, Job, Quote, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
 import { judge } from '../../src/lib/server/readings';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -80,6 +80,12 @@ describe('job status', () => {
 		expect(skip.text).toContain('A job that is "Checked in" cannot become "Ready for pick-up".');
 		expect(skip.text).toContain('Next it can be "Diagnosing"');
 		expect((await as.technician.form(`/jobs/${job.id}?/move`, { to: 'diagnosing' })).status).toBe(200);
+		const unsent = await as.technician.form(`/jobs/${job.id}?/move`, { to: 'quoted' });
+		expect(unsent.status).toBe(400);
+		expect(unsent.text).toContain('Send the estimate to the customer first');
+		expect((await Job.findByPk(job.id))!.status).toBe('diagnosing');
+		// As if an estimate had gone out (the quote tests send real ones).
+		await Quote.create({ shopId: shop.id, jobId: job.id, draft: {}, sentVersions: 1, editedSinceSend: false, updatedBy: shop.staff.technician.id });
 		expect((await as.technician.form(`/jobs/${job.id}?/move`, { to: 'quoted' })).status).toBe(200);
 		const techApproves = await as.technician.form(`/jobs/${job.id}?/move`, { to: 'approved' });
 		expect(techApproves.status).toBe(400);
