@@ -247,6 +247,21 @@ describe('versions', () => {
 		expect(after.createdAt.toISOString()).toBe('2026-11-30T12:12:00.000Z');
 	});
 
+	it('an option with nothing in it is not sent: the message names it and no version is made', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		const draft = alternatorDraft();
+		draft.options[0].lines = [];
+		const saved = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		expect(saved.type).toBe('success');
+		const refused = await action(as.writer, `/jobs/${job.id}/quote?/send`);
+		expect(refused.type).toBe('failure');
+		expect(refused.data.message).toContain(`"${draft.options[0].label}" has nothing in it yet`);
+		const quote = (await Quote.findOne({ where: { jobId: job.id } }))!;
+		expect(await QuoteVersion.count({ where: { quoteId: quote.id } })).toBe(0);
+		expect((await Job.findByPk(job.id))!.status).toBe('checked_in');
+	});
+
 	it('the desk withdraws the customer links; a technician may not', async () => {
 		const { job } = await createJob(shop);
 		await pageData(as.writer, job.id);
