@@ -3,6 +3,7 @@
 import { createHash } from 'node:crypto';
 import { parse } from 'csv-parse/sync';
 import { Decimal } from 'decimal.js';
+import { QueryTypes } from 'sequelize';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { evaluateRequest } from '../../src/lib/pricing/evaluate';
 import { Approval, Customer, Job, Quote, QuoteVersion, Unit, type UnitKind } from '../../src/lib/server/db/models';
@@ -224,6 +225,37 @@ describe('report figures on the fixed history (hand-computed in the comments of 
 		expect(byId[shop.staff.technician.id]).toMatchObject({ jobs: 3, hoursBilled: '2.67', hoursSpent: '3.00', efficiency: '0.89', revenue: '1151.83', grossProfit: '418.50', marginPercent: '36.3' });
 		expect(byId[shop.staff.manager.id]).toMatchObject({ jobs: 1, hoursBilled: '0.33', hoursSpent: '0.50', efficiency: '0.66', revenue: '62.42', grossProfit: '23.75', marginPercent: '38.0' });
 		expect(r.rows).toHaveLength(2);
+	});
+
+	it('a job shared by three people: the shares add up to the job to the cent, each within a cent of its exact part', async () => {
+		// 100.00 among three equal shares: 33.33 + 33.33 + 33.34, not 33.33 three times (common practice
+		// in allocating money, no source). Tried on the rotor job inside a transaction that is undone.
+		const transaction = await db().transaction();
+		try {
+			await db().query(
+				`UPDATE job_outcomes SET revenue = 100.00, cost = 0, labour_cost = 0, extra_parts_cost = 0, labour_cost_rate = 10, billed_hours = 2,
+				        actual_hours = 3, technician_hours = jsonb_build_object(gen_random_uuid()::text, 1, gen_random_uuid()::text, 1, gen_random_uuid()::text, 1)
+				  WHERE job_id = :job`,
+				{ replacements: { job: jobIds.rotor }, transaction }
+			);
+			const [outcome] = await db().query<{ revenue: string; grossProfit: string }>(
+				'SELECT revenue, actual_gross_profit AS "grossProfit" FROM job_outcomes WHERE job_id = :job',
+				{ replacements: { job: jobIds.rotor }, transaction, type: QueryTypes.SELECT }
+			);
+			const shares = await db().query<{ revenue: string; grossProfit: string; hoursBilled: string }>(
+				'SELECT revenue, gross_profit AS "grossProfit", hours_billed AS "hoursBilled" FROM report_technician_rows WHERE job_id = :job',
+				{ replacements: { job: jobIds.rotor }, transaction, type: QueryTypes.SELECT }
+			);
+			expect(shares).toHaveLength(3);
+			const total = (key: 'revenue' | 'grossProfit' | 'hoursBilled') => shares.reduce((sum, r) => sum.plus(r[key]), new Decimal(0));
+			expect(total('revenue').toFixed(2)).toBe('100.00');
+			expect(total('grossProfit').toFixed(2)).toBe(new Decimal(outcome.grossProfit).toFixed(2)); // 100.00 - 3 h × 10.00 = 70.00
+			expect(total('hoursBilled').toFixed(2)).toBe('2.00');
+			expect(shares.map((r) => new Decimal(r.revenue).toFixed(2)).sort()).toEqual(['33.33', '33.33', '33.34']);
+			for (const r of shares) expect(new Decimal(r.revenue).minus(new Decimal(100).div(3)).abs().lte('0.01')).toBe(true);
+		} finally {
+			await transaction.rollback();
+		}
 	});
 
 	it('biggest jobs by margin lost: only losses are charted, the total nets out gains', async () => {

@@ -391,7 +391,7 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 	technicians: {
 		title: 'Labour efficiency and margin per technician',
 		basis:
-			"Approved jobs by the month of approval. A job's hours billed, revenue and gross profit are shared among the people who recorded hours on it, in proportion to their hours (each share rounded); a job with no hours recorded counts for its assigned technician. Efficiency = hours billed ÷ hours spent, on jobs with hours recorded.",
+			"Approved jobs by the month of approval. A job's hours billed, revenue and gross profit are shared among the people who recorded hours on it, in proportion to their hours (rounded so that the shares add up to the job); a job with no hours recorded counts for its assigned technician. Efficiency = hours billed ÷ hours spent, on jobs with hours recorded.",
 		columns: [
 			{ key: 'technician', label: 'Technician', format: 'text' },
 			count('jobs', 'Jobs'),

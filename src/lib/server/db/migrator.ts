@@ -13,6 +13,7 @@ import * as rollupDays from './migrations/20261202-0009-report-rollup-days';
 import * as ageCounts from './migrations/20261202-0010-board-age-counts';
 import * as searchWalk from './migrations/20261202-0011-board-search-walk';
 import * as repairTimestamps from './migrations/20261202-0012-repair-timestamps';
+import * as technicianShares from './migrations/20261202-0013-technician-shares';
 
 export type Migration = MigrationFn<Sequelize>;
 
@@ -29,7 +30,8 @@ const migrations: { name: string; module: { up: Migration; down: Migration } }[]
 	{ name: '20261202-0009-report-rollup-days', module: rollupDays },
 	{ name: '20261202-0010-board-age-counts', module: ageCounts },
 	{ name: '20261202-0011-board-search-walk', module: searchWalk },
-	{ name: '20261202-0012-repair-timestamps', module: repairTimestamps }
+	{ name: '20261202-0012-repair-timestamps', module: repairTimestamps },
+	{ name: '20261202-0013-technician-shares', module: technicianShares }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {
