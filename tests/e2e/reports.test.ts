@@ -5,7 +5,9 @@ import path from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { Decimal } from 'decimal.js';
 import type { Page } from 'playwright-core';
+import { QueryTypes } from 'sequelize';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { db } from '../../src/lib/server/db';
 import { seedDemoHistory } from '../../src/lib/server/demo-history';
 import { BASE_URL } from '../helpers/client';
 import { DESKTOP, PHONE, closeBrowsers, openBrowser, screenshotDir } from '../helpers/browser';
@@ -19,6 +21,18 @@ beforeAll(async () => {
 	shop = await createShop('Report charts');
 	const added = await seedDemoHistory(shop.id, { technicians: [shop.staff.technician.id, shop.staff.manager.id], writer: shop.staff.writer.id });
 	expect(added).toBeGreaterThan(300);
+});
+
+it('the demo history has nothing after the present: no job opened, moved, sent, answered or worked on later than now', async () => {
+	const [late] = await db().query<Record<string, number>>(
+		`SELECT (SELECT count(*) FROM jobs WHERE shop_id = :shop AND (created_at > now() OR status_changed_at > now() OR updated_at > now()))::int AS jobs,
+		        (SELECT count(*) FROM audit_events WHERE shop_id = :shop AND created_at > now())::int AS events,
+		        (SELECT count(*) FROM quote_versions WHERE shop_id = :shop AND sent_at > now())::int AS versions,
+		        (SELECT count(*) FROM approvals WHERE shop_id = :shop AND created_at > now())::int AS answers,
+		        (SELECT count(*) FROM job_labour WHERE shop_id = :shop AND created_at > now())::int AS labour`,
+		{ replacements: { shop: shop.id }, type: QueryTypes.SELECT }
+	);
+	expect(late).toEqual({ jobs: 0, events: 0, versions: 0, answers: 0, labour: 0 });
 });
 afterAll(closeBrowsers);
 

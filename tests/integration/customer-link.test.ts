@@ -135,7 +135,8 @@ describe('the reasons the customer reads', () => {
 		expect(engine.some((r) => r.includes("the customer's preference decides"))).toBe(true);
 		const shown = forCustomer([...engine, engine[0], 'The repair costs more than that, so replacing the unit is the better buy.']);
 		expect(new Set(shown).size).toBe(shown.length);
-		expect(shown.some((r) => /better buy\.$/.test(r))).toBe(false);
+		expect(shown.some((r) => /better buy/.test(r))).toBe(false);
+		expect(forCustomer(['Replace: "New 5.5 kW portable" is a better buy than any repair offered.', 'A fact.'])).toEqual(['A fact.']);
 		expect(shown.join(' ')).not.toMatch(/shop's guide|the customer's/);
 		expect(shown).toContain(engine.find((r) => r.startsWith('The repair is ') && r.includes('of the price of a new unit'))!.replace(/; the shop's guide.*$/, '.'));
 		expect(shown.some((r) => r.includes('your preference decides'))).toBe(true);

@@ -91,12 +91,12 @@ export async function customerView(found: Found) {
 
 /**
  * The engine's reasons as the customer reads them: each once, without a sentence that only says
- * again the verdict shown above it, in the customer's own voice, and without the shop's internal
+ * again the verdict shown above it (the options below mark the one recommended), in the customer's own voice, and without the shop's internal
  * rule of thumb (the fact it is measured on stays).
  */
 export function forCustomer(reasons: string[]): string[] {
 	const shown = reasons
-		.filter((reason) => !/is the better buy\.$/.test(reason))
+		.filter((reason) => !/is the better buy\.$|is a better buy than /.test(reason))
 		.map((reason) => reason.replace(/; the shop's guide is to repair below [\d.]+%\.$/, '.').replace("the customer's preference decides", 'your preference decides'));
 	return [...new Set(shown)];
 }

@@ -43,6 +43,7 @@ export const load: PageServerLoad = async ({ params }) => {
 		canBench: BENCH.includes(user.role) || user.role === 'writer',
 		canEditSpecs: MANAGERS.includes(user.role),
 		moves: jobs.movesFor(job.status, user.role).filter((to) => to !== 'quoted' || sent.length > 0),
+		quotedBySending: sent.length === 0 && jobs.movesFor(job.status, user.role).includes('quoted'),
 		job: {
 			id: job.id, number: job.number, status: job.status, complaint: job.complaint, diagnosticFee: job.diagnosticFee,
 			promisedOn: job.promisedOn, failedComponent: job.failedComponent, findings: job.findings, lockVersion: job.lockVersion,
