@@ -207,3 +207,29 @@ describe('job board on more jobs than a page', () => {
 		expect((await get('')).counts.quoted).toBe(5);
 	});
 });
+
+describe('the home page', () => {
+	it('shows the board\'s open counts, the jobs waiting longest, and a technician\'s own jobs', async () => {
+		const home = await createShop('Home page');
+		const old = await createJob(home, { customerName: 'Wren Longwait' });
+		const fresh = await createJob(home, { customerName: 'Ivo Freshly' });
+		await createJob(home, { customerName: 'Unassigned Una' }).then(({ job }) => jobs.assign(actor(home, 'writer'), job.id, null));
+		await db().query(`UPDATE jobs SET status_changed_at = now() - interval '20 days' WHERE id = :id`, { replacements: { id: old.job.id } });
+		const owner = await signedIn(home.staff.owner.email, home.staff.owner.password);
+		const page = await owner.get('/home');
+		expect(page.status).toBe(200);
+		expect(page.text).toContain('3 jobs in the shop');
+		const waiting = page.text.slice(page.text.indexOf('Waiting over 14 days'));
+		expect(waiting).toContain('Wren Longwait');
+		expect(waiting).not.toContain('Ivo Freshly');
+		expect(page.text).not.toContain('Assigned to you'); // only a technician's home has it
+
+		const tech = await signedIn(home.staff.technician.email, home.staff.technician.password);
+		const mine = (await tech.get('/home')).text;
+		const assigned = mine.slice(mine.indexOf('Assigned to you'), mine.indexOf('Waiting over 14 days'));
+		expect(assigned).toContain('Ivo Freshly');
+		expect(assigned).toContain('Wren Longwait');
+		expect(assigned).not.toContain('Unassigned Una');
+		expect(mine).not.toContain('Orla Elsewhere'); // another shop's job
+	});
+});
