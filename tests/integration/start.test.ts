@@ -75,6 +75,13 @@ describe('npm start', () => {
 		const settings = await admin.query(
 			"SELECT name, setting FROM pg_settings WHERE name IN ('listen_addresses', 'fsync', 'synchronous_commit')"
 		);
+		// The demo tells one consistent story: a job past "quoted" has an estimate the customer answered.
+		const unanswered = await admin.query(`
+			SELECT count(*)::int AS n FROM jobs j
+			 WHERE (j.status IN ('approved', 'in_repair', 'ready') AND NOT EXISTS (
+			         SELECT 1 FROM quotes q JOIN approvals a ON a.quote_id = q.id WHERE q.job_id = j.id AND a.decision = 'approved'))
+			    OR (j.status = 'quoted' AND NOT EXISTS (SELECT 1 FROM quotes q WHERE q.job_id = j.id AND q.sent_versions > 0))`);
+		expect(unanswered.rows[0].n).toBe(0);
 		await admin.end();
 		const byName = Object.fromEntries(settings.rows.map((r) => [r.name, r.setting]));
 		expect(byName).toEqual({ listen_addresses: '127.0.0.1', fsync: 'on', synchronous_commit: 'on' });

@@ -3,6 +3,7 @@ import { hashPassword } from './auth/password';
 import { db } from './db';
 import { Customer, Shop, SpecSheet, Unit, User, type Role } from './db/models';
 import * as jobs from './jobs';
+import * as quotes from './quotes';
 import * as readings from './readings';
 import { seedDemoCatalog } from './demo-catalog';
 import { seedDemoHistory } from './demo-history';
@@ -117,10 +118,40 @@ async function seedDemoJobs(shopId: string, staff: User[], customers: Customer[]
 	const inverter = await jobs.checkIn(writer, q2200.id, {
 		complaint: 'Overload light comes on with a small heater.', diagnosticFee: '69.00', promisedOn: null, technicianId: dev.id
 	});
-	for (const to of ['diagnosing', 'quoted', 'approved', 'in_repair', 'ready'] as const) {
-		await jobs.transition(to === 'approved' ? writer : tech, inverter.id, to);
-	}
+	// Diagnosed, priced against a new inverter, sent, approved by the customer, repaired: ready.
+	await jobs.transition(tech, inverter.id, 'diagnosing');
+	const { quote } = await quotes.forJob(shopId, inverter.id);
+	await quotes.saveDraft(tech, inverter.id, INVERTER_ESTIMATE, quote.lockVersion);
+	const sent = await quotes.send(writer, inverter.id);
+	await quotes.decide(sent.token, {
+		decision: 'approved', optionIndex: 0, signerName: hollis.name, reason: '', clientAddress: '127.0.0.1', userAgent: 'demo data'
+	});
+	for (const to of ['in_repair', 'ready'] as const) await jobs.transition(tech, inverter.id, to);
 	await jobs.checkIn(writer, hs20.id, {
 		complaint: 'Weekly exercise runs, but the unit did not take over during the last outage.', diagnosticFee: '149.00', promisedOn: null, technicianId: null
 	});
 }
+
+/** The demo inverter's estimate: invented parts and prices. */
+const INVERTER_ESTIMATE = {
+	unit: { description: 'Brevik Power Q2200i', ageYears: '3', engineHours: '98', lifeYears: '8', lifeHours: '1000', condition: 'excellent', asIsValue: '150', annualUpkeep: '0' },
+	options: [
+		{
+			label: 'Replace the inverter module',
+			kind: 'repair',
+			creditDiagnosticFee: true,
+			lines: [
+				{ kind: 'part', description: 'Inverter module, 2 kW class', quantity: '1', unitCost: '148.00', specialOrder: true },
+				{ kind: 'labour', description: 'Replace inverter module and test under load', hours: '1.5' }
+			]
+		},
+		{
+			label: 'New 2.2 kW inverter',
+			kind: 'replacement',
+			lines: [{ kind: 'unit', description: 'Brevik Power Q2200i, new', cost: '410.00', price: '579.00' }],
+			lifeYears: '8',
+			lifeHours: '1000'
+		},
+		{ label: 'Decline the repair', kind: 'decline', lines: [{ kind: 'fee', description: 'Diagnostic fee', amount: '69.00', feeType: 'diagnostic' }] }
+	]
+};
