@@ -1,10 +1,10 @@
-import { QueryTypes, type Transaction } from 'sequelize';
+import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { z } from 'zod';
 import { JOB_STATUSES, NEXT_STATUSES, STATUS_LABELS, type JobStatus } from '../domain';
 import { ROLE_NAMES, type RoleName } from '../roles';
 import * as audit from './audit';
 import { db } from './db';
-import { Customer, Job, Shop, Unit, User } from './db/models';
+import { Customer, Job, Quote, Shop, Unit, User } from './db/models';
 import { UserError } from './errors';
 import { decimalString, isUuid, optionalText, plainNumber, requiredText } from './validators';
 
@@ -154,6 +154,10 @@ export async function transition(actor: Actor | CustomerActor, jobId: string, to
 		}
 		if (!MOVERS[target].includes(actor.role)) {
 			throw new UserError(`Your role cannot mark a job "${STATUS_LABELS[target]}"; the service desk does that.`);
+		}
+		// "Quoted" means the customer has an estimate: sending one marks it, a button alone may not.
+		if (target === 'quoted' && !(await Quote.count({ where: { shopId: actor.shopId, jobId: job.id, sentVersions: { [Op.gt]: 0 } }, transaction: t }))) {
+			throw new UserError('Send the estimate to the customer first; sending it marks the job quoted.');
 		}
 		await job.update({ status: target, statusChangedAt: new Date(), lockVersion: job.lockVersion + 1 }, { transaction: t });
 		await audit.record(

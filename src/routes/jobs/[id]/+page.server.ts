@@ -1,6 +1,5 @@
 import { error, fail } from '@sveltejs/kit';
 import { Decimal } from 'decimal.js';
-import { Op } from 'sequelize';
 import { z } from 'zod';
 import type { Actions, PageServerLoad } from './$types';
 import { formatMoney } from '$lib/pricing/money';
@@ -36,14 +35,16 @@ export const load: PageServerLoad = async ({ params }) => {
 		settings.get(user.shopId)
 	]);
 	const quote = await Quote.findOne({ where: { shopId: user.shopId, jobId: job.id }, attributes: ['id', 'editedSinceSend'] });
+	const moves = jobs.movesFor(job.status, user.role);
 	const sent = quote ? await QuoteVersion.findAll({ where: { shopId: user.shopId, quoteId: quote.id }, attributes: ['number', 'sentAt', 'validUntil'], order: [['number', 'DESC']] }) : [];
 	return {
 		role: user.role,
 		canAssign: FRONT_DESK.includes(user.role),
 		canBench: BENCH.includes(user.role) || user.role === 'writer',
 		canEditSpecs: MANAGERS.includes(user.role),
-		moves: jobs.movesFor(job.status, user.role).filter((to) => to !== 'quoted' || sent.length > 0),
-		quotedBySending: sent.length === 0 && jobs.movesFor(job.status, user.role).includes('quoted'),
+		// "Quoted" comes from sending the estimate (jobs.transition refuses it before one went out).
+		moves: moves.filter((to) => to !== 'quoted' || sent.length > 0),
+		quotedBySending: sent.length === 0 && moves.includes('quoted'),
 		job: {
 			id: job.id, number: job.number, status: job.status, complaint: job.complaint, diagnosticFee: job.diagnosticFee,
 			promisedOn: job.promisedOn, failedComponent: job.failedComponent, findings: job.findings, lockVersion: job.lockVersion,
@@ -76,10 +77,6 @@ export const actions: Actions = {
 		const user = requireRole(STAFF);
 		const parsed = parseForm(moveSchema, await request.formData());
 		if (!parsed.ok) return fail(400, { action: 'move', message: 'Choose what happens next.' });
-		// "Quoted" means the customer has an estimate: sending one marks it, a button alone may not.
-		if (parsed.data.to === 'quoted' && (await jobs.get(user.shopId, params.id)) && !(await Quote.count({ where: { shopId: user.shopId, jobId: params.id, sentVersions: { [Op.gt]: 0 } } }))) {
-			return fail(400, { action: 'move', message: 'Send the estimate to the customer first; sending it marks the job quoted.' });
-		}
 		const result = await attempt(() => jobs.transition(user, params.id, parsed.data.to), { action: 'move' });
 		return result.ok ? { action: 'move', done: 'Status updated.' } : result.failure;
 	},
