@@ -91,8 +91,8 @@ export async function customerView(found: Found) {
 
 /**
  * The engine's reasons as the customer reads them: each once, without a sentence that only says
- * again the verdict shown above it (the options below mark the one recommended), in the customer's own voice, and without the shop's internal
- * rule of thumb (the fact it is measured on stays).
+ * again the verdict shown above it (the options below mark the one recommended), in the customer's
+ * own voice, and without the shop's internal rule of thumb (the fact it is measured on stays).
  */
 export function forCustomer(reasons: string[]): string[] {
 	const shown = reasons
