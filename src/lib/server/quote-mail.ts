@@ -1,6 +1,7 @@
 // The e-mails around a quote: the estimate to the customer, and after their answer a signed copy
 // to them and a notice to the shop. All go through the durable outbox.
 import type { PricingResult } from '../pricing/evaluate';
+import { sayDay } from '../dates';
 import { describeUnit } from '../domain';
 import { moneyFormatter } from './customer-view';
 import { Approval, Customer, Job, Quote, QuoteVersion, Shop, Unit, User } from './db/models';
@@ -24,8 +25,6 @@ async function pdfOf(shopId: string, versionId: string, jobNumber: number, versi
 	return doc ? [{ filename: `estimate-${jobNumber}-v${versionNumber}.pdf`, contentType: 'application/pdf', content: await renderQuotePdf(doc) }] : [];
 }
 
-const dayOf = (iso: string) => new Intl.DateTimeFormat('en', { dateStyle: 'long', timeZone: 'UTC' }).format(new Date(`${iso}T12:00:00Z`));
-
 /** Queues the estimate for the customer. Returns why not, when the customer has no e-mail. */
 export async function quoteSent(shopId: string, jobId: string, version: QuoteVersion, link: string): Promise<{ queued: boolean; reason?: string }> {
 	const { job, contact, customer, unitLabel } = await context(shopId, jobId);
@@ -40,7 +39,7 @@ export async function quoteSent(shopId: string, jobId: string, version: QuoteVer
 		unitLabel,
 		link,
 		total: recommended ? `${money(recommended.total)} (${recommended.label})` : null,
-		validUntil: dayOf(version.validUntil)
+		validUntil: sayDay(version.validUntil, 'long')
 	});
 	await outbox.enqueue(
 		{ to: customer.email, ...content, attachments: await pdfOf(shopId, version.id, job.number, version.number) },

@@ -1,3 +1,4 @@
+import { sayDay } from '../../dates';
 import { trimZeros } from '../../pricing/format';
 
 /*
@@ -20,12 +21,11 @@ export function moneyFormatter(currency: string, digits: number): (amount: strin
 	return (amount: string) => made.format(amount as unknown as number);
 }
 
-const longDate = new Intl.DateTimeFormat('en-US', { dateStyle: 'long', timeZone: 'UTC' });
 const dateAndTime = new Intl.DateTimeFormat('en-US', { dateStyle: 'long', timeStyle: 'short', timeZone: 'UTC' });
 
 /** A date-only value ("2027-01-01") as "January 1, 2027", whatever the server's time zone. */
 export function sayDate(isoDate: string): string {
-	return longDate.format(new Date(`${isoDate.slice(0, 10)}T12:00:00Z`));
+	return sayDay(isoDate, 'long');
 }
 
 /** A moment as "December 2, 2026 at 2:05 PM UTC". */
