@@ -221,12 +221,12 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 			{ to: 'quoted', at: firstSent, by: staff.writer }
 		];
 		// The newest jobs are still waiting for an answer.
-		if (age < 4 * DAY && random.chance(0.6)) {
+		const waiting = () => {
 			statusPaths.push({ jobIndex: i, steps });
 			jobRows[i].status = 'quoted';
 			jobRows[i].statusChangedAt = firstSent;
-			return;
-		}
+		};
+		if (age < 4 * DAY && random.chance(0.6)) return waiting();
 		let sentAt = firstSent;
 		// Some customers ask for a second look before answering: a second version, same options.
 		const secondSent = random.chance(0.12) ? new Date(firstSent.getTime() + random.between(1, 4) * DAY) : null;
@@ -239,12 +239,7 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 			quoteRows[i].sentVersions = 2;
 		}
 		const decidedAt = new Date(sentAt.getTime() + Math.min(20, -Math.log(1 - random.next()) * 2.2 + 0.1) * DAY);
-		if (decidedAt.getTime() >= now.getTime()) {
-			statusPaths.push({ jobIndex: i, steps });
-			jobRows[i].status = 'quoted';
-			jobRows[i].statusChangedAt = firstSent;
-			return;
-		}
+		if (decidedAt.getTime() >= now.getTime()) return waiting();
 		const oldUnit = (unit.condition === 'poor' || unit.condition === 'fair') && random.chance(0.45);
 		const roll = random.next();
 		const outcome = roll < 0.16 ? 'declined' : oldUnit || roll > 0.9 ? 'replaced' : 'repaired';
