@@ -95,3 +95,11 @@ export const EXPECTED_LIFE: Record<UnitKind, { years: number; hours: number }> =
 	pressure_washer: { years: 8, hours: 500 },
 	other: { years: 10, hours: 1000 }
 };
+
+/** The first repair or replacement option with no lines (in itself or its stages): sent, it would reach the customer priced at nothing. */
+export function emptyOption<T extends { kind: string; lines?: unknown[]; stages?: { lines?: unknown[] }[] | null }>(options: T[]): T | undefined {
+	return options.find((o) => o.kind !== 'decline' && !o.lines?.length && !(o.stages ?? []).some((stage) => stage.lines?.length));
+}
+
+/** Why such an option cannot be sent, in the builder and from the server alike. */
+export const emptyOptionMessage = (label: string) => `"${label || 'An option'}" has nothing in it yet: add its parts and labour, or remove it, before sending.`;

@@ -1,6 +1,6 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { Op, type Transaction } from 'sequelize';
-import { EXPECTED_LIFE, type JobStatus } from '../domain';
+import { EXPECTED_LIFE, emptyOption, emptyOptionMessage, type JobStatus } from '../domain';
 import { evaluateRequest, type EvaluateResponse, type PricingResult } from '../pricing/evaluate';
 import { settingsToJson } from '../pricing/settings';
 import type { RoleName } from '../roles';
@@ -153,10 +153,8 @@ export async function send(actor: Actor, jobId: string) {
 		const request = { ...(await requestFor(actor.shopId, job, quote.draft as unknown as QuoteDraft, transaction)), settings: settingsToJson(shopSettings.pricing) };
 		const priced = evaluateRequest(request);
 		if (!priced.ok) throw new DraftInvalid(priced.message, priced.issues);
-		// A repair or replacement with nothing in it would reach the customer priced at nothing.
-		type Shape = { label: string; kind: string; lines?: unknown[]; stages?: { lines?: unknown[] }[] | null };
-		const empty = (request.options as Shape[]).find((o) => o.kind !== 'decline' && !o.lines?.length && !(o.stages ?? []).some((st) => st.lines?.length));
-		if (empty) throw new UserError(`"${empty.label}" has nothing in it yet: add its parts and labour, or remove it, before sending.`);
+		const empty = emptyOption(request.options as { label: string; kind: string }[]);
+		if (empty) throw new UserError(emptyOptionMessage(empty.label));
 
 		let version: QuoteVersion;
 		if (!quote.editedSinceSend && quote.sentVersions > 0) {
