@@ -167,12 +167,12 @@ describe('the quote builder in the browser', () => {
 		const name = page.getByLabel('Name of option 1');
 		await name.fill('My rebuild');
 		await page.getByRole('button', { name: 'Save' }).click();
-		await page.getByRole('alert').filter({ hasText: 'Someone else saved this quote' }).waitFor();
+		await page.getByRole('alert').filter({ hasText: 'Someone else saved this estimate' }).waitFor();
 		await expect(name.inputValue()).resolves.toBe('My rebuild');
 		expect(((await Quote.findOne({ where: { jobId: job.id } }))!.draft as { options: { label: string }[] }).options[0].label).toBe('Repair as the manager priced it');
 		await page.getByRole('button', { name: 'Reload theirs (drops my changes)' }).click();
 		await page.waitForFunction(() => (document.getElementById('f-options-0-label') as HTMLInputElement | null)?.value === 'Repair as the manager priced it');
-		await page.getByText('All changes saved').or(page.getByText('Showing the latest saved quote.')).first().waitFor();
+		await page.getByText('All changes saved').or(page.getByText('Showing the latest saved estimate.')).first().waitFor();
 	});
 
 	it('where technicians may not see costs, the builder prices parts by their sell price and shows no cost or margin', async () => {

@@ -146,7 +146,7 @@ describe('saving with a lock version', () => {
 		expect(b.type).toBe('failure');
 		expect(b.actionStatus).toBe(409);
 		expect(b.data.conflict).toBe(true);
-		expect(b.data.message).toContain('Someone else saved this quote');
+		expect(b.data.message).toContain('Someone else saved this estimate');
 		const stored = (await Quote.findOne({ where: { jobId: job.id } }))!;
 		expect(stored.lockVersion).toBe(start + 1);
 		expect((stored.draft as any).options[0].lines[0].unitCost).toBe('150.00');

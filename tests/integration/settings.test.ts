@@ -196,7 +196,7 @@ describe('bad settings are refused with the message beside the field, and nothin
 		['an unknown currency', { currency: 'ZZZ' }, 'currency', 'Unknown currency "ZZZ": use a three-letter ISO 4217 code such as USD, EUR or JPY.'],
 		['a labour rate that is not a number', { labourRate: 'lots' }, 'labourRate', 'Enter a labour rate per hour as plain digits with an optional decimal point, such as "12.50".'],
 		['a condition factor above 1', { conditionGood: '1.5' }, 'conditionGood', 'Enter a condition factor between 0 and 1 at least 0 and at most 1.'],
-		['zero days of validity', { quoteValidityDays: '0' }, 'quoteValidityDays', 'A quote stays valid for at least 1 day.'],
+		['zero days of validity', { quoteValidityDays: '0' }, 'quoteValidityDays', 'An estimate stays valid for at least 1 day.'],
 		['a negative fee', { feeDiagnostic: '-5' }, 'feeDiagnostic', 'Enter the diagnostic fee at least 0 and at most 1000000000.'],
 		['a close-call band over 50%', { closeCallPercent: '60' }, 'closeCallPercent', 'Enter a close-call band in percent at least 0 and at most 50.'],
 		['a bad e-mail', { email: 'front desk' }, 'email', 'Enter a valid e-mail address, like desk@example.com, or leave it empty.'],

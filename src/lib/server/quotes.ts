@@ -127,8 +127,8 @@ export async function saveDraft(actor: Actor, jobId: string, draft: unknown, loc
 			{ where: { shopId: actor.shopId, jobId, lockVersion }, transaction }
 		);
 		if (count === 0) {
-			if (!(await Quote.findOne({ where: { shopId: actor.shopId, jobId }, transaction }))) throw new UserError('Open the quote builder first.');
-			throw new QuoteConflict('Someone else saved this quote after you opened it. Your changes are still on screen: reload to see theirs, then apply yours again.');
+			if (!(await Quote.findOne({ where: { shopId: actor.shopId, jobId }, transaction }))) throw new UserError('Open the estimate builder first.');
+			throw new QuoteConflict('Someone else saved this estimate after you opened it. Your changes are still on screen: reload to see theirs, then apply yours again.');
 		}
 		await audit.record({ shopId: actor.shopId, userId: actor.id, action: 'quote.saved', entity: 'job', entityId: jobId }, transaction);
 	});
@@ -145,8 +145,8 @@ export async function send(actor: Actor, jobId: string) {
 	return db().transaction(async (transaction) => {
 		const job = await jobOf(actor.shopId, jobId, transaction);
 		const quote = await Quote.findOne({ where: { shopId: actor.shopId, jobId }, lock: transaction.LOCK.UPDATE, transaction });
-		if (!quote) throw new UserError('Build the quote before sending it.');
-		if (await Approval.findOne({ where: { quoteId: quote.id }, transaction })) throw new UserError('The customer has already answered this quote.');
+		if (!quote) throw new UserError('Build the estimate before sending it.');
+		if (await Approval.findOne({ where: { quoteId: quote.id }, transaction })) throw new UserError('The customer has already answered this estimate.');
 		if (!SENDABLE.includes(job.status as JobStatus)) throw new UserError('This job is past quoting.');
 		const shopSettings = await settings.get(actor.shopId, transaction);
 		// The version carries the settings in force, so it can be priced again exactly as sent.

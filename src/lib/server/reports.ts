@@ -275,7 +275,7 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 	margin: {
 		title: 'Gross margin by month',
 		basis:
-			'Approved jobs by the month of approval. Gross profit is the quoted price less cost, with actuals where recorded: labour at the hours actually spent times the labour cost per hour the quote was priced with, and parts used beyond the quote at cost.',
+			'Approved jobs by the month of approval. Gross profit is the quoted price less cost, with actuals where recorded: labour at the hours actually spent times the labour cost per hour the estimate was priced with, and parts used beyond the estimate at cost.',
 		columns: [
 			{ key: 'month', label: 'Month', format: 'month' },
 			money('parts', 'Parts profit'),
@@ -290,7 +290,7 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			money('revenue', 'Revenue'),
 			money('parts_sell', 'Parts sold'),
 			money('parts_cost', 'Parts cost (quoted)'),
-			money('extra_parts_cost', 'Parts beyond the quote'),
+			money('extra_parts_cost', 'Parts beyond the estimate'),
 			money('parts', 'Parts profit'),
 			money('labour_sell', 'Labour sold'),
 			{ key: 'billed_hours', label: 'Hours billed', format: 'hours' },
@@ -309,9 +309,9 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			  FROM (${jobRows(s, 'decided_at', " AND d.decision = 'approved'")}) d ${JOB_LABELS} ${TECH_JOIN} ORDER BY d.decided_at, j.number`
 	},
 	approval: {
-		title: 'Approval rate of sent quotes',
+		title: 'Approval rate of sent estimates',
 		basis:
-			'Quotes by the month they were first sent, however many versions followed. Rate = quotes approved ÷ quotes sent in that month, whenever the answer came; quotes still unanswered count as sent, not approved.',
+			'Estimates by the month they were first sent, however many versions followed. Rate = estimates approved ÷ estimates sent in that month, whenever the answer came; estimates still unanswered count as sent, not approved.',
 		columns: [
 			{ key: 'month', label: 'Month first sent', format: 'month' },
 			count('sent', 'Quotes sent'),
@@ -360,9 +360,9 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 		csv: outcomeCsv
 	},
 	'days-to-approval': {
-		title: 'Days from quote to approval',
+		title: 'Days from estimate to approval',
 		basis:
-			'Approved quotes by the month of approval: days from the first version sent to the approval, each rounded to a hundredth of a day; their average, and how many came within a day, within three days, within a week, or later.',
+			'Approved estimates by the month of approval: days from the first version sent to the approval, each rounded to a hundredth of a day; their average, and how many came within a day, within three days, within a week, or later.',
 		columns: [
 			{ key: 'month', label: 'Month approved', format: 'month' },
 			count('approvals', 'Approvals'),
@@ -433,7 +433,7 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 	},
 	'margin-lost': {
 		title: 'Biggest jobs by margin lost',
-		basis: `Approved jobs by the month of approval with actuals recorded. Margin lost = gross profit as quoted − gross profit after actuals (hours spent at the labour cost rate, parts beyond the quote); negative when a job beat its quote. The chart shows the ${TOP_MARGIN_LOST} largest losses; the totals net out the gains.`,
+		basis: `Approved jobs by the month of approval with actuals recorded. Margin lost = gross profit as quoted − gross profit after actuals (hours spent at the labour cost rate, parts beyond the estimate); negative when a job beat its estimate. The chart shows the ${TOP_MARGIN_LOST} largest losses; the totals net out the gains.`,
 		columns: [
 			count('job', 'Job'),
 			{ key: 'customer', label: 'Customer', format: 'text' },
@@ -446,7 +446,7 @@ const DEFINITIONS: Record<ReportName, Definition> = {
 			...JOB_CSV_HEAD_COLUMNS,
 			{ key: 'billed_hours', label: 'Hours billed', format: 'hours' },
 			{ key: 'actual_hours', label: 'Hours spent', format: 'hours' },
-			money('extra_parts_cost', 'Parts beyond the quote'),
+			money('extra_parts_cost', 'Parts beyond the estimate'),
 			money('quotedProfit', 'Gross profit as quoted'),
 			money('grossProfit', 'Gross profit after actuals'),
 			money('marginLost', 'Margin lost')

@@ -52,10 +52,10 @@ const feeField = (what: string) => decimalField({ min: 0, max: MAX_MONEY, maxDec
 const validityField = z.preprocess(
 	plainNumber,
 	z.coerce
-		.number({ error: 'Enter the number of days a quote stays valid.' })
+		.number({ error: 'Enter the number of days an estimate stays valid.' })
 		.int('Enter whole days.')
-		.min(1, 'A quote stays valid for at least 1 day.')
-		.max(365, 'Keep quote validity to 365 days or fewer.')
+		.min(1, 'An estimate stays valid for at least 1 day.')
+		.max(365, 'Keep estimate validity to 365 days or fewer.')
 );
 
 const storedExtrasSchema = {

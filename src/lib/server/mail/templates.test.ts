@@ -58,7 +58,7 @@ describe('e-mail templates', () => {
 	it('say what was decided, with replies going to the right person', () => {
 		expect(all.approved.subject).toBe('Job #1042: Tamsin Yarrow approved Replace the rotor');
 		expect(all.approved.replyTo).toBe('tamsin@home.example');
-		expect(all.declined.subject).toBe('Job #1042: Tamsin Yarrow declined the quote');
+		expect(all.declined.subject).toBe('Job #1042: Tamsin Yarrow declined the estimate');
 		expect(all.declined.text).toContain('Customer note: Buying a new one.');
 		expect(all.declined.replyTo).toBeUndefined();
 		expect(all.quote.replyTo).toBe('desk@larkspur.example');

@@ -215,7 +215,7 @@ export function approvalConfirmation(input: {
 	return toCustomer(shop, input.customerName, `Approved: job #${input.jobNumber} at ${shop.name}`, blocks);
 }
 
-/** To the shop: the customer approved an option or declined the quote. */
+/** To the shop: the customer approved an option or declined the estimate. */
 export function decisionNotice(input: {
 	shop: ShopContact;
 	decision: 'approved' | 'declined';
@@ -234,14 +234,14 @@ export function decisionNotice(input: {
 	const approved = input.decision === 'approved';
 	return compose({
 		subject: approved
-			? `Job #${input.jobNumber}: ${input.customerName} approved ${input.optionLabel ?? 'the quote'}`
-			: `Job #${input.jobNumber}: ${input.customerName} declined the quote`,
+			? `Job #${input.jobNumber}: ${input.customerName} approved ${input.optionLabel ?? 'the estimate'}`
+			: `Job #${input.jobNumber}: ${input.customerName} declined the estimate`,
 		greeting: 'Hello,',
 		blocks: [
 			paragraph(
 				approved
-					? `${input.customerName} approved the quote for job #${input.jobNumber}. The job can move to repair; order any special-order parts once the deposit is in.`
-					: `${input.customerName} declined the quote for job #${input.jobNumber}. Arrange the pick-up of the unit and settle any diagnostic fee.`
+					? `${input.customerName} approved the estimate for job #${input.jobNumber}. The job can move to repair; order any special-order parts once the deposit is in.`
+					: `${input.customerName} declined the estimate for job #${input.jobNumber}. Arrange the pick-up of the unit and settle any diagnostic fee.`
 			),
 			facts(
 				['Job', `#${input.jobNumber}`],

@@ -116,7 +116,7 @@ export async function sendBalanceLink(actor: Actor, jobId: string, origin: strin
 	if (!customer?.email) throw new UserError('The customer has no e-mail address. Add one on the customer page, or take the balance at the counter.');
 	return db().transaction(async (transaction) => {
 		const { terms, summary } = await summaryFor(actor.shopId, job.id, transaction);
-		if (terms.approval?.decision !== 'approved' || !terms.version) throw new UserError('This job has no approved quote to take a payment against.');
+		if (terms.approval?.decision !== 'approved' || !terms.version) throw new UserError('This job has no approved estimate to take a payment against.');
 		if (!summary.owed || summary.owed.isZero()) throw new UserError('Nothing is owed on this job.');
 		const token = randomBytes(32).toString('base64url');
 		await QuoteLink.create(

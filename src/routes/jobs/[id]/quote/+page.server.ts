@@ -25,7 +25,7 @@ const REVOKERS = FRONT_DESK;
 const SENDABLE = ['checked_in', 'diagnosing', 'quoted'];
 
 const saveSchema = z.object({
-	draft: z.string({ error: 'Send the quote as JSON.' }).max(512 * 1024, 'The quote is too large to save.'),
+	draft: z.string({ error: 'Send the estimate as JSON.' }).max(512 * 1024, 'The estimate is too large to save.'),
 	lockVersion: z.preprocess(plainNumber, z.coerce.number({ error: 'Reload the page and try again.' }).int().min(0).max(2_147_483_646))
 });
 
@@ -66,10 +66,10 @@ export const load: PageServerLoad = async ({ params }) => {
 		canSend: SENDERS.includes(user.role),
 		canRevoke: REVOKERS.includes(user.role),
 		sendBlocked: approval
-			? 'The customer has already answered this quote.'
+			? 'The customer has already answered this estimate.'
 			: SENDABLE.includes(job.status)
 				? null
-				: 'This job is past quoting, so the quote cannot be sent again.',
+				: 'This job is past quoting, so the estimate cannot be sent again.',
 		quote: { lockVersion: quote.lockVersion, sentVersions: quote.sentVersions, editedSinceSend: quote.editedSinceSend, draft },
 		versions: versions.map((v) => ({ number: v.number, contentHash: v.contentHash, validUntil: v.validUntil, sentAt: v.sentAt.toISOString() })),
 		approval: approval ? { decision: approval.decision, optionLabel: approval.optionLabel, at: approval.createdAt.toISOString() } : null,
@@ -100,7 +100,7 @@ export const actions: Actions = {
 		}
 		// PostgreSQL's jsonb cannot hold the NUL character.
 		if (JSON.stringify(draft).includes('\\u0000')) {
-			return fail(400, { action: 'save', message: 'Nothing was saved: the quote contains a NUL character. Remove it and save again.', issues: [] });
+			return fail(400, { action: 'save', message: 'Nothing was saved: the estimate contains a NUL character. Remove it and save again.', issues: [] });
 		}
 		const shop = await settings.get(user.shopId);
 		if (!settings.seesCosts(user.role, shop)) {
