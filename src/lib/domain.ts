@@ -68,6 +68,15 @@ export const MOVE_LABELS: Record<JobStatus, string> = {
 	picked_up: 'Handed back'
 };
 
+/** A move back (a quoted unit taken down again for a second look) is named and shown as one. */
+export function isStepBack(from: JobStatus, to: JobStatus): boolean {
+	return JOB_STATUSES.indexOf(to) < JOB_STATUSES.indexOf(from);
+}
+
+export function moveLabel(from: JobStatus, to: JobStatus): string {
+	return from === 'quoted' && to === 'diagnosing' ? 'Back to diagnosis' : MOVE_LABELS[to];
+}
+
 export const READING_RESULTS = ['pass', 'low', 'high', 'open', 'short', 'noted'] as const;
 export type ReadingResult = (typeof READING_RESULTS)[number];
 export const RESULT_LABELS: Record<ReadingResult, string> = {
