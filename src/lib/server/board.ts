@@ -64,7 +64,7 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	};
 	const one = async <T>(sql: string, options?: { reusePlan: boolean }) => (await prepared<T>(sql, values, options))[0];
 
-	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
+	const counts = noneYet();
 	const counted: readonly JobStatus[] = query.status.length ? query.status : JOB_STATUSES;
 	const sumOf = (statuses: readonly JobStatus[]) => statuses.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
 
@@ -101,9 +101,7 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	}
 
 	values.techKey = query.tech === 'none' ? NO_TECHNICIAN : query.tech;
-	// In the database's own order of statuses: a board sorted by status is laid out in that order.
-	const countsOf = `SELECT json_object_agg(status, n ORDER BY status) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
-	  WHERE shop_id = :shopId${query.tech ? ' AND technician_key = :techKey' : ''} GROUP BY status) c`;
+	const countsOf = countsSql(Boolean(query.tech));
 	if (offset === 0) {
 		// The first page needs no total to be read: counts and rows in one statement.
 		const order = orderBy(query.dir === 'asc');
@@ -148,6 +146,21 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		const rows = await prepared<BoardRow>(pageOf(walk(order, take, fromEnd ? of - skip - take : skip, only), order), values);
 		return fromEnd ? rows.reverse() : rows;
 	}
+}
+
+/**
+ * Jobs per status, from `job_status_counts` (kept by triggers), in the database's own order of
+ * statuses: a board sorted by status is laid out in that order.
+ */
+const countsSql = (byTechnician: boolean) => `SELECT json_object_agg(status, n ORDER BY status) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
+	  WHERE shop_id = :shopId${byTechnician ? ' AND technician_key = :techKey' : ''} GROUP BY status) c`;
+
+const noneYet = () => Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;
+
+/** How many of the shop's jobs are in each status, without reading a page of them. */
+export async function statusCounts(shopId: string): Promise<Record<JobStatus, number>> {
+	const [row] = await prepared<{ counts: Partial<Record<JobStatus, number>> | null }>(`SELECT (${countsSql(false)}) AS counts`, { shopId });
+	return Object.assign(noneYet(), row.counts);
 }
 
 const COLUMNS = `j.id, j.number, j.status, left(j.complaint, 160) AS complaint, j.customer_name AS customer,

@@ -12,9 +12,9 @@ const OPEN: JobStatus[] = JOB_STATUSES.filter((s) => s !== 'picked_up' && s !== 
 export const load: PageServerLoad = async () => {
 	const user = requireRole(STAFF);
 	const view = (params: Record<string, string>) => board.page(user.shopId, board.parseBoardQuery(new URLSearchParams(params)));
-	const [team, all, waiting, mine] = await Promise.all([
+	const [team, counts, waiting, mine] = await Promise.all([
 		users.listTeam(user.shopId),
-		view({ per: '10' }),
+		board.statusCounts(user.shopId),
 		// Oldest first: what has sat longest without a step forward.
 		view({ age: 'stale', sort: 'changed', dir: 'asc', per: '10' }),
 		user.role === 'technician' ? view({ tech: user.id, status: OPEN.join(','), sort: 'promised', dir: 'asc', per: '10' }) : null
@@ -29,7 +29,7 @@ export const load: PageServerLoad = async () => {
 		teamSize: team.length,
 		role: user.role,
 		userId: user.id,
-		counts: all.counts,
+		counts,
 		open: OPEN,
 		waiting: brief(waiting),
 		mine: mine ? brief(mine) : null
