@@ -18,6 +18,10 @@ try {
 		'/api/jobs?q=penhallow',
 		'/api/jobs?q=harrowgate%20no%20output&sort=unit&dir=asc',
 		'/api/jobs?q=penhallow&sort=customer&dir=asc',
+		// The hardest shape known: a word whose matches all sort near the far end of the order
+		// asked for (the last first name sorted by customer, the last maker sorted by unit).
+		'/api/jobs?q=linnea&sort=customer&dir=asc',
+		'/api/jobs?q=tamworth&sort=unit&dir=asc',
 		'/api/jobs?q=SN00123',
 		'/api/jobs?tech=none&sort=promised&dir=asc',
 		'/api/jobs?age=30&sort=technician',
