@@ -34,12 +34,14 @@ describe('customer link', () => {
 		expect(page.text).not.toContain('212.40'); // a part's cost never reaches the customer
 		expect(page.text).not.toMatch(/margin/i);
 		expect(page.text).toContain('carbon monoxide');
+		// No option is ticked for the customer when there is a choice to make.
+		if (result.options.filter((o) => o.kind !== 'decline').length > 1) expect(page.text).not.toMatch(/name="optionIndex"[^>]*checked/);
 		// Labour in hours, as on the PDF (the sample repair quotes 2.5 h).
 		expect(page.text).toMatch(/Replace alternator head 2\.50? h/);
 
 		const unsigned = await approve(customer, token, { optionIndex: '0', signerName: '', consent: 'yes' });
 		expect(unsigned.status).toBe(400);
-		expect(unsigned.text).toContain('Type your full name as your signature.');
+		expect(unsigned.text.split('Type your full name as your signature.')).toHaveLength(2); // said once, beside the field
 		const noConsent = await approve(customer, token, { optionIndex: '0', signerName: 'Tamsin Yarrow' });
 		expect(noConsent.status).toBe(400);
 		expect(await Approval.count({ where: { shopId: shop.id } })).toBe(0);
@@ -54,7 +56,11 @@ describe('customer link', () => {
 		expect(approvals[0]).toMatchObject({ decision: 'approved', optionIndex: 0, signerName: 'Tamsin Yarrow', versionHash: version!.contentHash });
 		expect(approvals[0].clientAddress).toBeTruthy();
 		expect((await Job.findByPk(job.id))!.status).toBe('approved');
-		expect((await customer.get(`/q/${token}`)).text).toContain('you approved this estimate');
+		const answered = (await customer.get(`/q/${token}`)).text;
+		expect(answered).toContain('you approved this estimate');
+		// The approved option is the one marked now, not the shop's recommendation.
+		expect(answered.split('You approved this</span>')).toHaveLength(2);
+		expect(answered).not.toContain('Our recommendation');
 	});
 
 	it('cannot approve the decline option or an option that does not exist', async () => {
