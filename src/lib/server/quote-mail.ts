@@ -31,14 +31,13 @@ export async function quoteSent(shopId: string, jobId: string, version: QuoteVer
 	if (!customer.email) return { queued: false, reason: 'The customer has no e-mail address on file; give them the link another way.' };
 	const result = version.result as unknown as PricingResult;
 	const money = moneyFormatter(result.currency, result.minorDigits);
-	const recommended = result.options.find((o) => o.index === result.recommendation.optionIndex) ?? result.options[0];
 	const content = templates.quoteSent({
 		shop: contact,
 		customerName: customer.name,
 		jobNumber: job.number,
 		unitLabel,
 		link,
-		total: recommended ? `${money(recommended.total)} (${recommended.label})` : null,
+		options: result.options.map((o) => ({ label: o.label, total: money(o.total), recommended: o.index === result.recommendation.optionIndex })),
 		validUntil: sayDay(version.validUntil, 'long')
 	});
 	await outbox.enqueue(

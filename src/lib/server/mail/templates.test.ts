@@ -5,7 +5,8 @@ const shop = { name: 'Larkspur Engine & Generator Repair', phone: '555-0148', em
 
 const all = {
 	invite: templates.staffInvite({ shop, inviterName: 'Ora Pell', roleLabel: 'Technician', link: 'https://app.example/invite/tok', validDays: 7 }),
-	quote: templates.quoteSent({ shop, customerName: 'Tamsin Yarrow', jobNumber: 1042, unitLabel: 'Brevik Power BP-7000', link: 'https://app.example/q/1', total: '$1,204.50', validUntil: '30 Dec 2026' }),
+	quote: templates.quoteSent({ shop, customerName: 'Tamsin Yarrow', jobNumber: 1042, unitLabel: 'Brevik Power BP-7000', link: 'https://app.example/q/1',
+		options: [{ label: 'Replace the rotor', total: '$1,204.50', recommended: true }, { label: 'New Brevik Power BP-7000', total: '$1,149.00', recommended: false }], validUntil: '30 Dec 2026' }),
 	approval: templates.approvalConfirmation({
 		shop, customerName: 'Tamsin Yarrow', jobNumber: 1042, unitLabel: 'Brevik Power BP-7000', optionLabel: 'Replace the rotor', total: '$1,204.50',
 		deposit: '$300.00', signedBy: 'Tamsin Yarrow', signedAt: '2 Dec 2026, 10:14', link: 'https://app.example/q/1'
@@ -53,6 +54,12 @@ describe('e-mail templates', () => {
 		expect(all.quote.html).toContain('href="https://app.example/q/1"');
 		expect(all.balance.text).toContain('Pay $904.50:\nhttps://app.example/pay/1');
 		expect(all.approved.html).toContain('href="https://app.example/jobs/9"');
+	});
+
+	it('list every option of the estimate with its total, the recommended one marked', () => {
+		expect(all.quote.text).toMatch(/Replace the rotor \(our recommendation\):?\s+\$1,204\.50/);
+		expect(all.quote.text).toMatch(/New Brevik Power BP-7000:?\s+\$1,149\.00/);
+		expect(all.quote.text).not.toContain('Quoted total');
 	});
 
 	it('say what was decided, with replies going to the right person', () => {

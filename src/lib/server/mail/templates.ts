@@ -168,13 +168,19 @@ export function quoteSent(input: {
 	jobNumber: number | string;
 	unitLabel: string;
 	link: string;
-	total?: string | null;
+	/** Every option with its total, so no one price stands for the estimate. */
+	options?: { label: string; total: string; recommended: boolean }[];
 	validUntil?: string | null;
 }): MailContent {
 	const { shop } = input;
 	return toCustomer(shop, input.customerName, `Your estimate for job #${input.jobNumber} from ${shop.name}`, [
 		paragraph(`We have finished diagnosing your ${input.unitLabel} and written up what it takes to put it right. The estimate is attached as a PDF and waiting for you online, where you can compare the options, including whether repair or replacement makes more sense.`),
-		facts(['Job', `#${input.jobNumber}`], ['Unit', input.unitLabel], ['Quoted total', input.total], ['Valid until', input.validUntil]),
+		facts(
+			['Job', `#${input.jobNumber}`],
+			['Unit', input.unitLabel],
+			...(input.options ?? []).map((o): [string, string] => [o.recommended ? `${o.label} (our recommendation)` : o.label, o.total]),
+			['Valid until', input.validUntil]
+		),
 		{ kind: 'button', label: 'Review and approve the estimate', href: checkLink(input.link) },
 		paragraph('No work beyond the diagnosis starts until you approve an option in writing.'),
 		{ kind: 'caution' }
