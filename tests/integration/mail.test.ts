@@ -114,7 +114,8 @@ describe('the outbox on its own database, two app instances and a catcher the te
 		const pdf = Buffer.concat([Buffer.from('%PDF-1.7\n'), randomBytes(150_000)]);
 		const mail = templates.quoteSent({
 			shop: { name: shop.name, phone: '555-0140', email: 'desk@shop.example', address: '12 Quarry Road' },
-			customerName: 'Tamsin Yarrow', jobNumber: 1001, unitLabel: 'Harrowgate PG-5500', link: 'https://mendwise.example/q/abc', total: '$412.50'
+			customerName: 'Tamsin Yarrow', jobNumber: 1001, unitLabel: 'Harrowgate PG-5500', link: 'https://mendwise.example/q/abc',
+			options: [{ label: 'Rewind the stator', total: '$412.50', recommended: true }]
 		});
 		const { id, messageId } = await outbox.enqueue(
 			{ to, ...mail, attachments: [{ filename: 'quote-1001.pdf', contentType: 'application/pdf', content: pdf }] },
