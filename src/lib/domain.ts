@@ -112,3 +112,8 @@ export function emptyOption<T extends { kind: string; lines?: unknown[]; stages?
 
 /** Why such an option cannot be sent, in the builder and from the server alike. */
 export const emptyOptionMessage = (label: string) => `"${label || 'An option'}" has nothing in it yet: add its parts and labour, or remove it, before sending.`;
+
+/** The estimate reference printed for a sent version: the start of its content hash, the same on every screen, e-mail and PDF. */
+export function estimateReference(contentHash: string): string {
+	return contentHash.slice(0, 12);
+}

@@ -139,7 +139,7 @@ describe('the reasons the customer reads', () => {
 		// The engine's own words, which the customer page rewrites; if they change, so must forCustomer.
 		expect(engine.some((r) => r.includes("the shop's guide is to repair below"))).toBe(true);
 		expect(engine.some((r) => r.includes("the customer's preference decides"))).toBe(true);
-		const shown = forCustomer([...engine, engine[0], 'The repair costs more than that, so replacing the unit is the better buy.']);
+		const shown = forCustomer([...engine, engine[0], 'The repair costs more than it is worth, so replacing the unit is the better buy.']);
 		expect(new Set(shown).size).toBe(shown.length);
 		expect(shown.some((r) => /better buy/.test(r))).toBe(false);
 		expect(forCustomer(['Replace: "New 5.5 kW portable" is a better buy than any repair offered.', 'A fact.'])).toEqual(['A fact.']);

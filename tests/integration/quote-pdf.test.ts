@@ -8,6 +8,7 @@ import path from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { evaluateRequest, type PricingResult } from '../../src/lib/pricing/evaluate';
+import { estimateReference } from '../../src/lib/domain';
 import { Job, QuoteLink, QuoteVersion, Reading, Shop } from '../../src/lib/server/db/models';
 import * as photos from '../../src/lib/server/photos';
 import * as quotes from '../../src/lib/server/quotes';
@@ -199,7 +200,7 @@ describe('estimate PDF', () => {
 		expect(text).toContain('Tax (7.25%)');
 
 		// Every page carries its number, the version and the short content hash.
-		const hash = sent.version.contentHash.slice(0, 16);
+		const hash = estimateReference(sent.version.contentHash);
 		pages.forEach((page, i) => {
 			expect(page).toContain(`Page ${i + 1} of ${pages.length}`);
 			expect(page).toContain(`version 1`);
@@ -234,14 +235,14 @@ describe('estimate PDF', () => {
 		for (const option of (sent.result as PricingResult).options) expect(unsigned).toContain(money(option.total));
 
 		await quotes.decide(sent.token, decision(1));
-		const hash = sent.version.contentHash.slice(0, 16);
+		const hash = estimateReference(sent.version.contentHash);
 		for (const reply of [await fetchBytes(`/q/${sent.token}/quote.pdf`), await fetchBytes(`/jobs/${sent.job.id}/quote/v/1/quote.pdf`, staff)]) {
 			expect(reply.status).toBe(200);
 			const signed = flat(pdfPages(reply.bytes));
 			expect(signed).toContain('Approved by Tamsin Yarrow on');
-			expect(signed).toContain('from 203.0.113.9');
-			expect(signed).toContain('option Find and fix in stages');
-			expect(signed).toContain(`version hash ${hash}`);
+			expect(signed).toContain('network address 203.0.113.9');
+			expect(signed).toContain('option “Find and fix in stages”');
+			expect(signed).toContain(`of estimate ${hash}`);
 			expect(signed).not.toContain('Signature');
 		}
 	});

@@ -543,9 +543,10 @@ function assessRepair(
 		} else {
 			reasons.push(`The most this repair is worth is ${fmt.say(rStarMinor)}, against "${challenger.option.option.label}".`);
 		}
-		if (verdict === 'repair') reasons.push('The repair costs less than that, so repairing is the better buy.');
-		else if (verdict === 'replace') reasons.push(rStar.gt(0) ? 'The repair costs more than that, so replacing the unit is the better buy.' : 'Replacing the unit is the better buy.');
-		else reasons.push(`The repair is within ${sayPercent(settings.closeCallBand)} of that figure: a close call, so the customer's preference decides.`);
+		// Each reason reads on its own: the PDF and the customer's page may print them apart.
+		if (verdict === 'repair') reasons.push('The repair costs less than it is worth, so repairing is the better buy.');
+		else if (verdict === 'replace') reasons.push(rStar.gt(0) ? 'The repair costs more than it is worth, so replacing the unit is the better buy.' : 'Replacing the unit is the better buy.');
+		else reasons.push(`The repair is within ${sayPercent(settings.closeCallBand)} of what it is worth: a close call, so the customer's preference decides.`);
 		const asIs = unit.asIsValue.gt(0) ? `, counting the ${fmt.say(unit.asIsValue)} the old unit would fetch as it is,` : '';
 		reasons.push(
 			`Spread over the ${sayYears(repairLife)} the repaired unit should last${asIs} repairing costs ${fmt.say(perYearRepair)} a year; ` +

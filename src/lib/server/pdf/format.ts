@@ -1,3 +1,4 @@
+import { estimateReference } from '../../domain';
 import { sayDay } from '../../dates';
 import { trimZeros } from '../../pricing/format';
 
@@ -40,6 +41,4 @@ export function sayPercent(percent: string): string {
 }
 
 /** The short form of a content hash printed on every page and in the approval record. */
-export function shortHash(hash: string): string {
-	return hash.slice(0, 16);
-}
+export const shortHash = estimateReference;

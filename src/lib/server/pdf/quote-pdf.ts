@@ -439,7 +439,7 @@ function termsSection(page: Page, d: QuoteDocument, money: (s: string) => string
 	const terms = [
 		`This estimate is valid until ${sayDate(d.version.validUntil)}. After that date prices and parts availability may change; ask the shop for a new estimate.`,
 		'Work starts only after your written approval of one option, signed below or given through the link in your e-mail. The shop asks you again before doing anything that costs more than the option you approved.',
-		'A deposit is due on approval. The part of it that pays for special-order parts is non-refundable once those parts are ordered (common shop practice; the shop’s own terms govern).',
+		'A deposit is due on approval. The part of it that pays for special-order parts is non-refundable once those parts are ordered.',
 		d.diagnosticFee
 			? `The diagnostic fee of ${money(d.diagnosticFee)} pays for finding the fault and is due even if no repair is done.` +
 				(d.diagnosticFeeCredited ? ' Where an option shows it credited, it is taken off that option’s price.' : '')
@@ -456,8 +456,8 @@ function approvalSection(page: Page, d: QuoteDocument) {
 	if (a && a.forThisVersion) {
 		const text =
 			a.decision === 'approved'
-				? `Approved by ${a.signerName ?? 'the customer'} on ${sayDateTime(a.at)} from ${a.clientAddress}, option ${a.optionLabel ?? '—'}, version hash ${shortHash(a.versionHash)}.`
-				: `Declined on ${sayDateTime(a.at)} from ${a.clientAddress}, version hash ${shortHash(a.versionHash)}.`;
+				? `Approved by ${a.signerName ?? 'the customer'} on ${sayDateTime(a.at)}: option “${a.optionLabel ?? '—'}” of estimate ${shortHash(a.versionHash)}, signed online from network address ${a.clientAddress}.`
+				: `Declined on ${sayDateTime(a.at)}: estimate ${shortHash(a.versionHash)}, answered online from network address ${a.clientAddress}.`;
 		page.box(a.decision === 'approved' ? 'Approved' : 'Declined', a.reason ? [text, `Reason given: ${a.reason}`] : [text], a.decision === 'approved' ? COLOUR.mossLight : COLOUR.paper, a.decision === 'approved' ? COLOUR.moss : COLOUR.soft);
 		return;
 	}
