@@ -104,6 +104,9 @@ describe('the quote builder in the browser', () => {
 		await expect(repair.getByTestId('option-total').textContent()).resolves.toBe(formatFixedMoney(engine.result.options[0].total, 'USD'));
 		// The engine's figures: 312.00 × 1.50 (tier up to 500) = 468.00; 2.5 h × 95.00 = 237.50; supplies 5% = 11.88; less the 89.00 fee.
 		expect(engine.result.options[0].total).toBe('628.38');
+		// The lines the engine adds are listed with the totals, so the card adds up on screen.
+		await expect(repair.getByText('Shop supplies', { exact: true }).count()).resolves.toBe(1);
+		await expect(repair.getByText('Diagnostic fee credited', { exact: true }).count()).resolves.toBe(1);
 
 		await page.waitForFunction(() => !!document.querySelector('canvas'));
 		await expect(canvasDrawn(page)).resolves.toBe(true);
@@ -115,6 +118,13 @@ describe('the quote builder in the browser', () => {
 		await page.getByRole('button', { name: 'Send to the customer…' }).click();
 		await page.getByRole('button', { name: 'Send version 1' }).click();
 		await page.getByRole('heading', { name: 'Sent as version 1' }).waitFor();
+		// The confirmation, far below the button on a phone, is brought into view and focused.
+		await page.waitForFunction(() => {
+			const box = document.activeElement;
+			if (box?.getAttribute('aria-labelledby') !== 'sent-heading') return false;
+			const { top } = box.getBoundingClientRect();
+			return top >= 0 && top < window.innerHeight;
+		});
 		const link = await page.getByLabel('Customer link').inputValue();
 		expect(link).toMatch(new RegExp(`^${BASE_URL}/q/[A-Za-z0-9_-]{40,}$`));
 		expect(await QuoteVersion.count({ where: { quoteId: quote.id } })).toBe(1);
