@@ -103,6 +103,12 @@ describe('the deposit, paid by card through the SDK and the local fake', () => {
 		expect(jobPage.text).toContain(usd(deposit));
 		const total = new Dec(q.option.authorised);
 		expect(jobPage.text).toContain(usd(total.minus(deposit).toFixed(2)));
+
+		// The job page itself says what was approved, by whom, and that the deposit is in.
+		const job = (await staff.writer.get(`/jobs/${q.job.id}`)).text;
+		const answer = job.slice(job.indexOf('data-testid="estimate-answer"'));
+		expect(answer).toMatch(/Approved<\/strong>: “[^”]+”/);
+		expect(answer).toContain(`${usd(deposit)} · paid`);
 	});
 
 	it('a declined card leaves the deposit unpaid, says so clearly, and the customer can try again on the same page', async () => {

@@ -9,6 +9,7 @@ import { requireRole } from '$lib/server/auth/guard';
 import { Quote, QuoteVersion } from '$lib/server/db/models';
 import { echo, parseForm } from '$lib/server/forms';
 import * as jobs from '$lib/server/jobs';
+import * as payments from '$lib/server/payments';
 import * as photos from '$lib/server/photos';
 import * as readings from '$lib/server/readings';
 import * as settings from '$lib/server/settings';
@@ -25,15 +26,17 @@ export const load: PageServerLoad = async ({ params }) => {
 	const found = await jobs.detail(user.shopId, params.id);
 	if (!found) error(404, 'No such job in your shop.');
 	const { job, unit, customer, technician } = found;
-	const [taken, sheets, sheet, history, techs, pictures, shop] = await Promise.all([
+	const [taken, sheets, sheet, history, techs, pictures, shop, money] = await Promise.all([
 		readings.list(user.shopId, job.id),
 		specs.list(user.shopId),
 		job.specSheetId ? specs.get(user.shopId, job.specSheetId) : null,
 		jobs.history(user.shopId, job.id),
 		jobs.technicians(user.shopId),
 		photos.list(user.shopId, job.id),
-		settings.get(user.shopId)
+		settings.get(user.shopId),
+		payments.summaryFor(user.shopId, job.id)
 	]);
+	const { approval } = money.terms;
 	const quote = await Quote.findOne({ where: { shopId: user.shopId, jobId: job.id }, attributes: ['id', 'editedSinceSend'] });
 	const moves = jobs.movesFor(job.status, user.role);
 	const sent = quote ? await QuoteVersion.findAll({ where: { shopId: user.shopId, quoteId: quote.id }, attributes: ['number', 'sentAt', 'validUntil'], order: [['number', 'DESC']] }) : [];
@@ -67,7 +70,15 @@ export const load: PageServerLoad = async ({ params }) => {
 			at: r.createdAt.toISOString()
 		})),
 		photos: pictures,
-		estimate: { started: !!quote, versions: sent.map((v) => ({ number: v.number, sentAt: v.sentAt.toISOString(), validUntil: v.validUntil })) },
+		estimate: {
+			started: !!quote,
+			versions: sent.map((v) => ({ number: v.number, sentAt: v.sentAt.toISOString(), validUntil: v.validUntil })),
+			// The customer's answer and what has been paid against it, so the job page says where the money stands.
+			answer: approval
+				? { decision: approval.decision, optionLabel: money.summary.optionLabel, signerName: approval.signerName, at: approval.createdAt.toISOString(), version: money.terms.version?.number ?? null }
+				: null,
+			money: approval ? payments.summaryJson(money.summary) : null
+		},
 		history: history.map((h) => ({ ...h, at: new Date(h.at).toISOString() }))
 	};
 };
