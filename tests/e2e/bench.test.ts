@@ -68,6 +68,14 @@ describe('check-in and bench readings', () => {
 		await bench.getByLabel('Stator main winding 1 resistance in Ω').fill('0.41');
 		await bench.getByLabel('Stator main winding 1 resistance in Ω').press('Enter');
 		await bench.getByRole('cell', { name: '0.41 Ω' }).waitFor();
+		// Saved: the box is empty for the next reading, the value shows beside it as the last one.
+		await expect(bench.getByLabel('Stator main winding 1 resistance in Ω').inputValue()).resolves.toBe('');
+		// A value that is not a number is refused beside its own line, and stays there to correct.
+		await bench.getByLabel('Stator main winding 1 resistance in Ω').fill('0.4.1');
+		await bench.getByLabel('Stator main winding 1 resistance in Ω').press('Enter');
+		await bench.getByRole('listitem').filter({ hasText: 'Stator main winding 1 resistance' }).getByRole('alert').waitFor();
+		await expect(bench.getByLabel('Stator main winding 1 resistance in Ω').inputValue()).resolves.toBe('0.4.1');
+		await bench.getByLabel('Stator main winding 1 resistance in Ω').fill('');
 		await bench.getByLabel('Rotor field resistance through brushes and slip rings in Ω').fill('OL');
 		await bench.getByLabel('Rotor field resistance through brushes and slip rings in Ω').press('Enter');
 		await bench.getByRole('cell', { name: 'OL (over range)' }).waitFor();
