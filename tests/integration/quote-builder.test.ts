@@ -8,6 +8,7 @@ import { carriesCosts } from '../../src/lib/components/quote/costs';
 import { evaluateRequest } from '../../src/lib/pricing/evaluate';
 import { AuditEvent, Job, Part, Quote, QuoteLink, QuoteVersion, Shop } from '../../src/lib/server/db/models';
 import { db } from '../../src/lib/server/db';
+import * as quotes from '../../src/lib/server/quotes';
 import * as settings from '../../src/lib/server/settings';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -245,6 +246,25 @@ describe('versions', () => {
 		const after = (await Job.findByPk(job.id))!;
 		expect(after.status).toBe('quoted');
 		expect(after.createdAt.toISOString()).toBe('2026-11-30T12:12:00.000Z');
+	});
+
+	it('once the customer has answered, the estimate is kept as answered: a save is refused and changes nothing', async () => {
+		const { job } = await createJob(shop);
+		await pageData(as.writer, job.id);
+		const draft = alternatorDraft();
+		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		const sent = await action(as.writer, `/jobs/${job.id}/quote?/send`);
+		const token = String(sent.data.link).split('/q/')[1];
+		await quotes.decide(token, { decision: 'declined', optionIndex: null, signerName: null, reason: 'Buying new', clientAddress: '203.0.113.9', userAgent: 'test' });
+		const before = (await Quote.findOne({ where: { shopId: shop.id, jobId: job.id } }))!;
+
+		(draft.options[0].lines[1] as Record<string, unknown>).quantity = '3';
+		const refused = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(before.lockVersion) });
+		expect(refused.type).toBe('failure');
+		expect(String(refused.data.message)).toContain('the customer has declined this estimate');
+		const after = (await Quote.findOne({ where: { shopId: shop.id, jobId: job.id } }))!;
+		expect(after.lockVersion).toBe(before.lockVersion);
+		expect(JSON.stringify(after.draft)).toBe(JSON.stringify(before.draft));
 	});
 
 	it('an option with nothing in it is not sent: the message names it and no version is made', async () => {

@@ -122,6 +122,10 @@ export async function saveDraft(actor: Actor, jobId: string, draft: unknown, loc
 	const clean = { unit: (draft as QuoteDraft).unit, options: (draft as QuoteDraft).options };
 	// The draft, its lock version and the audit record land together or not at all.
 	await db().transaction(async (transaction) => {
+		// Under the quote's row lock, as an answer is recorded: an answered estimate stays as it was answered.
+		const current = await Quote.findOne({ where: { shopId: actor.shopId, jobId }, attributes: ['id'], lock: transaction.LOCK.UPDATE, transaction });
+		const answered = current ? await Approval.findOne({ where: { shopId: actor.shopId, quoteId: current.id }, attributes: ['decision'], transaction }) : null;
+		if (answered) throw new UserError(`Not saved: the customer has ${answered.decision} this estimate, so it stays as they answered it. Record work beyond it under Actuals.`);
 		const [count] = await Quote.update(
 			{ draft: clean as unknown as Record<string, unknown>, lockVersion: lockVersion + 1, editedSinceSend: true, updatedBy: actor.id },
 			{ where: { shopId: actor.shopId, jobId, lockVersion }, transaction }
