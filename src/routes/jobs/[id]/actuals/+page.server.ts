@@ -18,8 +18,10 @@ export const load: PageServerLoad = async ({ params }) => {
 	}
 	const canRecord = BENCH.includes(user.role);
 	const forOthers = actuals.recordsForOthers(user.role);
+	// Hours are most often the assigned technician's: the desk or a manager recording them starts there.
+	const assigned = found.job.technicianId && found.people.some((p) => p.id === found.job.technicianId) ? found.job.technicianId : null;
 	return {
-		me: user.id,
+		worker: forOthers ? (assigned ?? user.id) : user.id,
 		canRecord,
 		forOthers,
 		job: { id: found.job.id, number: found.job.number, status: found.job.status },
