@@ -41,7 +41,9 @@ describe('customer link', () => {
 
 		const unsigned = await approve(customer, token, { optionIndex: '0', signerName: '', consent: 'yes' });
 		expect(unsigned.status).toBe(400);
-		expect(unsigned.text.split('Type your full name as your signature.')).toHaveLength(2); // said once, beside the field
+		// Said once, beside the field, not again in an alert above the form.
+		expect(unsigned.text).toContain('role="alert">Type your full name as your signature.</span>');
+		expect(unsigned.text).not.toMatch(/notice-bad[^>]*>Type your full name/);
 		const noConsent = await approve(customer, token, { optionIndex: '0', signerName: 'Tamsin Yarrow' });
 		expect(noConsent.status).toBe(400);
 		expect(await Approval.count({ where: { shopId: shop.id } })).toBe(0);

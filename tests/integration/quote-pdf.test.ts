@@ -251,7 +251,7 @@ describe('estimate PDF', () => {
 		const sent = await sentJob(shop);
 		await quotes.decide(sent.token, decision(null, 'declined'));
 		const text = flat(pdfPages((await fetchBytes(`/jobs/${sent.job.id}/quote/v/1/quote.pdf`, technician)).bytes));
-		expect(text).toMatch(/Declined on \w+ \d+, \d{4} at .+ UTC from 203\.0\.113\.9/);
+		expect(text).toMatch(/Declined on \w+ \d+, \d{4} at .+ UTC: estimate [0-9a-f]{12}, answered online from network address 203\.0\.113\.9/);
 		expect(text).toContain('Reason given: Buying a new one');
 		expect(text).not.toContain('Approved by');
 	});
