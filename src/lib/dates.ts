@@ -8,3 +8,15 @@ const LONG = new Intl.DateTimeFormat('en', { dateStyle: 'long', timeZone: 'UTC' 
 export function sayDay(isoDate: string, style: 'medium' | 'long' = 'medium'): string {
 	return (style === 'long' ? LONG : MEDIUM).format(new Date(`${isoDate.slice(0, 10)}T12:00:00Z`));
 }
+
+/** Today's calendar date, "YYYY-MM-DD", as UTC sees it. */
+export function today(now: Date = new Date()): string {
+	return now.toISOString().slice(0, 10);
+}
+
+/** The calendar date `days` after (or before, when negative) `isoDate`. */
+export function addDays(isoDate: string, days: number): string {
+	const d = new Date(`${isoDate.slice(0, 10)}T12:00:00Z`);
+	d.setUTCDate(d.getUTCDate() + days);
+	return d.toISOString().slice(0, 10);
+}

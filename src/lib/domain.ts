@@ -1,3 +1,4 @@
+import { today } from './dates';
 // The shop's vocabulary, shared by server and pages: kinds, statuses and their plain-word labels.
 
 export const UNIT_KINDS = ['portable', 'inverter', 'standby', 'pressure_washer', 'other'] as const;
@@ -67,6 +68,11 @@ export const MOVE_LABELS: Record<JobStatus, string> = {
 	ready: 'Repair finished',
 	picked_up: 'Handed back'
 };
+
+/** Past its promised day and not yet ready: the board and the job page flag it. */
+export function isOverdue(promisedOn: string | null, status: JobStatus, now: Date = new Date()): boolean {
+	return promisedOn !== null && !['ready', 'picked_up', 'declined'].includes(status) && promisedOn.slice(0, 10) < today(now);
+}
 
 /** A move back (a quoted unit taken down again for a second look) is named and shown as one. */
 export function isStepBack(from: JobStatus, to: JobStatus): boolean {

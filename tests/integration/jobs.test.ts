@@ -59,6 +59,11 @@ describe('customers, units and check-in', () => {
 		expect(badJob.status).toBe(400);
 		expect(badJob.text).toContain("Write down the customer's complaint.");
 		expect(await Job.count({ where: { shopId: shop.id } })).toBe(before);
+		const lastYear = new Date(Date.now() - 400 * 86_400_000).toISOString().slice(0, 10);
+		const pastPromise = await as.writer.form(`/units/${unit.id}?/checkIn`, { complaint: 'No output', diagnosticFee: '89.00', promisedOn: lastYear, technicianId: '' });
+		expect(pastPromise.status).toBe(400);
+		expect(pastPromise.text).toContain('The promised date has already passed');
+		expect(await Job.count({ where: { shopId: shop.id } })).toBe(before);
 		const foreignTech = await as.writer.form(`/units/${unit.id}?/checkIn`, { complaint: 'x', diagnosticFee: '1', promisedOn: '', technicianId: other.staff.technician.id });
 		expect(foreignTech.status).toBe(400);
 		expect(foreignTech.text).toContain('Pick a technician from your own team.');

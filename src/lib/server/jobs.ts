@@ -1,5 +1,6 @@
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import { z } from 'zod';
+import { addDays, today } from '../dates';
 import { JOB_STATUSES, NEXT_STATUSES, STATUS_LABELS, type JobStatus } from '../domain';
 import { ROLE_NAMES, type RoleName } from '../roles';
 import * as audit from './audit';
@@ -26,7 +27,11 @@ export const checkInSchema = z.object({
 	diagnosticFee: decimalString('The diagnostic fee', { max: '100000' }),
 	promisedOn: z.preprocess(
 		(v) => (v === '' ? undefined : v),
-		z.iso.date({ error: 'Enter the promised date as a date.' }).optional()
+		z.iso
+			.date({ error: 'Enter the promised date as a date.' })
+			// A day's grace either side of UTC midnight, so "today" is accepted in every time zone.
+			.refine((d) => d >= addDays(today(), -1), 'The promised date has already passed: pick today or a later day.')
+			.optional()
 	).transform((v) => v ?? null),
 	technicianId: z.preprocess((v) => (v === '' ? undefined : v), z.uuid({ error: 'Pick a technician from the list.' }).optional()).transform((v) => v ?? null)
 });
