@@ -35,10 +35,20 @@ export const optionalInt = (min: number, max: number, label: string) =>
 	).transform((v) => (v === undefined ? null : v));
 
 /** A decimal amount kept as a string (never a float), 0 ≤ value ≤ max, at most `places` decimals. */
+/**
+ * An amount as people type it: "$649", "1,149.00" or "€ 89" reads as 649, 1149.00 and 89. Commas
+ * are dropped only where they group thousands (1,149 or 12,500.50), so "1,5" is still refused
+ * rather than guessed at.
+ */
+export function plainAmount(typed: string): string {
+	const bare = typed.trim().replace(/^(-?)\s*[$€£]\s*/, '$1');
+	return /^-?\d{1,3}(,\d{3})+(\.\d+)?$/.test(bare) ? bare.replaceAll(',', '') : bare;
+}
+
 export const decimalString = (label: string, { max = '1000000000', places = 2, min = '0' } = {}) =>
 	z
 		.string({ error: `Enter ${label.toLowerCase()}.` })
-		.trim()
+		.transform(plainAmount)
 		.refine((v) => /^-?\d{1,12}(\.\d+)?$/.test(v), `${label} must be a number like 125.50.`)
 		.refine((v) => !/^-?\d{1,12}(\.\d+)?$/.test(v) || new Decimal(v).decimalPlaces() <= places, `${label} can have at most ${places} decimals.`)
 		.refine((v) => !/^-?\d{1,12}(\.\d+)?$/.test(v) || new Decimal(v).gte(min), `${label} cannot be below ${min}.`)
