@@ -1,4 +1,6 @@
 import { error, fail, redirect } from '@sveltejs/kit';
+import { Decimal } from 'decimal.js';
+import { formatMoney } from '$lib/pricing/money';
 import type { Actions, PageServerLoad } from './$types';
 import { FRONT_DESK, STAFF } from '$lib/roles';
 import { attempt } from '$lib/server/actions';
@@ -26,6 +28,7 @@ export const load: PageServerLoad = async ({ params }) => {
 		technicians: techs.map((t) => ({ id: t.id, name: t.name })),
 		/** The check-in form starts from the shop's diagnostic fee. */
 		diagnosticFee: settings.moneyField(shop.fees.diagnostic, shop.currency),
+		pricePaidText: unit.pricePaid == null ? null : formatMoney(new Decimal(unit.pricePaid), shop.currency),
 		history: history.map((j) => ({ id: j.id, number: j.number, status: j.status, complaint: j.complaint, failedComponent: j.failedComponent, openedAt: j.createdAt.toISOString() }))
 	};
 };
