@@ -4,7 +4,7 @@ import { db } from '../../src/lib/server/db';
 import * as repairTimestamps from '../../src/lib/server/db/migrations/20261202-0012-repair-timestamps';
 import * as jobs from '../../src/lib/server/jobs';
 import { AuditEvent, Customer, Job, Quote, Reading, SpecItem, SpecSheet } from '../../src/lib/server/db/models';
-import { judge } from '../../src/lib/server/readings';
+import { forCustomer as readingsForCustomer, judge } from '../../src/lib/server/readings';
 import { Client, signedIn } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
 import { actor, createJob } from '../helpers/shopdata';
@@ -151,6 +151,26 @@ describe('bench readings', () => {
 		expect(await Reading.count({ where: { jobId: job.id } })).toBe(cases.length);
 		const page = await as.technician.get(`/jobs/${job.id}`);
 		expect(page.text).toContain('Open circuit');
+	});
+
+	it('the customer is shown the readings of the sheet in use and free-form ones, not those of a sheet set aside', async () => {
+		const { job } = await createJob(shop);
+		const sheetWith = async (name: string, label: string) => {
+			expect((await as.manager.form('/specs/new?/save', { name, appliesTo: '', notes: '', label, unit: 'Ω', min: '0.3', max: '0.5', openAbove: '', shortBelow: '', running: 'off', source: '' })).status).toBe(303);
+			return (await SpecItem.findOne({ where: { shopId: shop.id, label } }))!;
+		};
+		const first = await sheetWith('First sheet for the swap', 'Winding on the first sheet');
+		const second = await sheetWith('Second sheet for the swap', 'Winding on the second sheet');
+		await as.technician.form(`/jobs/${job.id}?/sheet`, { id: first.sheetId });
+		await as.technician.form(`/jobs/${job.id}?/reading`, { specItemId: first.id, value: '0.4' });
+		await as.technician.form(`/jobs/${job.id}?/sheet`, { id: second.sheetId });
+		await as.technician.form(`/jobs/${job.id}?/reading`, { specItemId: second.id, value: '0.41' });
+		await as.technician.form(`/jobs/${job.id}?/reading`, { label: 'Output voltage', unit: 'V', value: '0' });
+		const fresh = (await Job.findByPk(job.id))!;
+		expect((await readingsForCustomer(shop.id, fresh)).map((r) => r.label)).toEqual(['Winding on the second sheet', 'Output voltage']);
+		// The shop still sees all three on the job page.
+		const page = (await as.technician.get(`/jobs/${job.id}`)).text;
+		for (const label of ['Winding on the first sheet', 'Winding on the second sheet', 'Output voltage']) expect(page).toContain(label);
 	});
 
 	it('the judge treats the bounds as inclusive and an over-range meter as open', () => {

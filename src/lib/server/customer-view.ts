@@ -1,9 +1,9 @@
-import { Customer, Job, Reading, Shop, Unit } from './db/models';
+import { Customer, Job, Shop, Unit } from './db/models';
 import type { PricingResult } from '../pricing/evaluate';
 import { RESULT_LABELS, describeUnit, type ReadingResult } from '../domain';
 import * as photos from './photos';
 import type { byToken } from './quotes';
-import { show } from './readings';
+import { forCustomer as readingsForCustomer, show } from './readings';
 
 type Found = NonNullable<Awaited<ReturnType<typeof byToken>>>;
 
@@ -24,7 +24,7 @@ export async function customerView(found: Found) {
 		Shop.findByPk(shopId, { attributes: ['name', 'phone', 'email', 'address'] }),
 		Unit.findOne({ where: { id: job.unitId, shopId } }),
 		Customer.findOne({ where: { id: job.customerId, shopId }, attributes: ['name'] }),
-		Reading.findAll({ where: { shopId, jobId: job.id }, order: [['createdAt', 'ASC']] }),
+		readingsForCustomer(shopId, job),
 		photos.listForCustomer(shopId, job.id)
 	]);
 	const result = version.result as unknown as PricingResult;

@@ -96,3 +96,18 @@ export async function remove(actor: Actor, jobId: string, readingId: string) {
 export function show(reading: Pick<Reading, 'value' | 'overRange' | 'unit'>): string {
 	return reading.overRange ? `OL (over range)` : `${new Decimal(reading.value ?? 0).toString()} ${reading.unit}`;
 }
+
+/**
+ * The readings a customer is shown, oldest first: those taken without a sheet and those judged
+ * against the job's spec sheet now. A reading judged against a sheet the technician has since
+ * set aside stays on the job page for the shop, but would set two ranges for one measurement side
+ * by side on the estimate.
+ */
+export async function forCustomer(shopId: string, job: { id: string; specSheetId: string | null }): Promise<Reading[]> {
+	const [taken, current] = await Promise.all([
+		Reading.findAll({ where: { shopId, jobId: job.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']] }),
+		job.specSheetId ? SpecItem.findAll({ where: { shopId, sheetId: job.specSheetId }, attributes: ['id'] }) : []
+	]);
+	const onSheet = new Set(current.map((i) => i.id));
+	return taken.filter((r) => r.specItemId === null || onSheet.has(r.specItemId));
+}

@@ -5,7 +5,7 @@ import type { LineResult, OptionResult, PricingResult } from '../../pricing/eval
 import { Dec, HUNDRED } from '../../pricing/money';
 import { Approval, Customer, Job, Quote, QuoteVersion, Reading, Shop, Unit } from '../db/models';
 import * as photos from '../photos';
-import { show } from '../readings';
+import { forCustomer as readingsForCustomer, show } from '../readings';
 import { isUuid } from '../validators';
 
 /*
@@ -230,7 +230,7 @@ export async function quoteDocument(shopId: string, versionId: string): Promise<
 		Shop.findByPk(shopId, { attributes: ['name', 'phone', 'email', 'address'] }),
 		Customer.findOne({ where: { id: job.customerId, shopId }, attributes: ['name', 'phone', 'email'] }),
 		Unit.findOne({ where: { id: job.unitId, shopId } }),
-		Reading.findAll({ where: { shopId, jobId: job.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']] }),
+		readingsForCustomer(shopId, job),
 		customerPhotos(shopId, job.id),
 		Approval.findOne({ where: { shopId, quoteId: quote.id } })
 	]);
