@@ -223,6 +223,8 @@ describe('the home page', () => {
 		expect(waiting).toContain('Wren Longwait');
 		expect(waiting).not.toContain('Ivo Freshly');
 		expect(page.text).not.toContain('Assigned to you'); // only a technician's home has it
+		expect(page.text).toContain('href="/customers?checkin"');
+		expect((await owner.get('/customers?checkin')).text).toContain('To check a unit in, find its owner below');
 
 		const tech = await signedIn(home.staff.technician.email, home.staff.technician.password);
 		const mine = (await tech.get('/home')).text;
@@ -231,5 +233,6 @@ describe('the home page', () => {
 		expect(assigned).toContain('Wren Longwait');
 		expect(assigned).not.toContain('Unassigned Una');
 		expect(mine).not.toContain('Orla Elsewhere'); // another shop's job
+		expect(mine).not.toContain('Check a unit in'); // technicians do not check units in
 	});
 });

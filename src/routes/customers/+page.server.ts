@@ -19,6 +19,8 @@ export const load: PageServerLoad = async ({ url }) => {
 		pages: found.pages,
 		total: found.total,
 		canCreate: FRONT_DESK.includes(user.role),
+		/** Arrived from "Check a unit in": the page says how a check-in goes from here. */
+		checkingIn: url.searchParams.has('checkin') && FRONT_DESK.includes(user.role),
 		customers: found.rows.map((c) => ({ id: c.id, name: c.name, phone: c.phone, email: c.email, address: c.address }))
 	};
 };
