@@ -82,6 +82,16 @@ describe('npm start', () => {
 			         SELECT 1 FROM quotes q JOIN approvals a ON a.quote_id = q.id WHERE q.job_id = j.id AND a.decision = 'approved'))
 			    OR (j.status = 'quoted' AND NOT EXISTS (SELECT 1 FROM quotes q WHERE q.job_id = j.id AND q.sent_versions > 0))`);
 		expect(unanswered.rows[0].n).toBe(0);
+		// ...and a unit handed back after an approval was paid for in full, to the cent of its estimate.
+		const paid = await admin.query(`
+			SELECT count(*)::int AS jobs,
+			       count(*) FILTER (WHERE (v.result->'options'->a.option_index->>'authorised')::numeric
+			         <> coalesce((SELECT sum(p.amount) FROM payments p WHERE p.job_id = j.id AND p.status = 'paid'), 0))::int AS unsettled
+			  FROM jobs j JOIN quotes q ON q.job_id = j.id JOIN approvals a ON a.quote_id = q.id AND a.decision = 'approved'
+			  JOIN quote_versions v ON v.id = a.version_id
+			 WHERE j.status = 'picked_up'`);
+		expect(paid.rows[0].jobs).toBeGreaterThan(0);
+		expect(paid.rows[0].unsettled).toBe(0);
 		await admin.end();
 		const byName = Object.fromEntries(settings.rows.map((r) => [r.name, r.setting]));
 		expect(byName).toEqual({ listen_addresses: '127.0.0.1', fsync: 'on', synchronous_commit: 'on' });

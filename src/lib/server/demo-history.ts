@@ -1,10 +1,12 @@
 import { createHash } from 'node:crypto';
+import { Decimal } from 'decimal.js';
 import type { InferCreationAttributes } from 'sequelize';
 import { EXPECTED_LIFE, type JobStatus, type UnitKind } from '../domain';
 import { evaluateRequest, type PricingResult } from '../pricing/evaluate';
 import { settingsToJson } from '../pricing/settings';
 import { db } from './db';
 import { Approval, AuditEvent, Customer, Job, Quote, QuoteVersion, Unit } from './db/models';
+import { Payment } from './db/payment-models';
 import { JobExtraPart, JobLabour } from './db/report-models';
 import { refreshBoardColumns } from './jobs';
 import { canonicalJson } from './quotes';
@@ -12,7 +14,8 @@ import * as settings from './settings';
 
 /*
  * Eighteen months of finished jobs for the demo shop, so every report means something on first
- * start: quotes priced by the engine, the customers' answers, and the hours really spent. Every
+ * start: quotes priced by the engine, the customers' answers, the money taken at the counter and
+ * the hours really spent. Every
  * person, maker and part here is invented. A fixed seed makes the history the same on every load.
  */
 
@@ -185,6 +188,9 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 	const decisions: { jobIndex: number; decision: 'approved' | 'declined'; optionIndex: number | null; label: string | null; at: Date }[] = [];
 	const labourRows: { jobIndex: number; technicianId: string; hours: string; workedOn: string; at: Date }[] = [];
 	const partRows: { jobIndex: number; description: string; unitCost: string; at: Date }[] = [];
+	// Money taken at the counter: the deposit soon after approval, the rest (or, after a decline, the
+	// diagnostic fee) when the unit goes home.
+	const paymentPlans: { jobIndex: number; due: 'deposit' | 'rest'; at: Date }[] = [];
 	const statusPaths: { jobIndex: number; steps: { to: JobStatus; at: Date; by: string | null }[] }[] = [];
 
 	plans.forEach((plan, i) => {
@@ -254,14 +260,22 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 		steps.push({ to: outcome === 'declined' ? 'declined' : 'approved', at: decidedAt, by: null });
 		if (outcome === 'declined') {
 			const collected = new Date(decidedAt.getTime() + random.between(1, 5) * DAY);
-			if (collected.getTime() < now.getTime()) steps.push({ to: 'picked_up', at: collected, by: staff.writer });
+			if (collected.getTime() < now.getTime()) {
+				steps.push({ to: 'picked_up', at: collected, by: staff.writer });
+				paymentPlans.push({ jobIndex: i, due: 'rest', at: collected });
+			}
 		} else {
+			const depositAt = new Date(decidedAt.getTime() + random.between(0.05, 0.5) * DAY);
+			if (depositAt.getTime() < now.getTime()) paymentPlans.push({ jobIndex: i, due: 'deposit', at: depositAt });
 			const started = new Date(decidedAt.getTime() + random.between(0.5, outcome === 'repaired' && template.lines.some((l) => l.specialOrder) ? 7 : 2) * DAY);
 			const finished = new Date(started.getTime() + random.between(0.2, 2) * DAY);
 			if (started.getTime() < now.getTime()) steps.push({ to: 'in_repair', at: started, by: technician });
 			if (finished.getTime() < now.getTime()) steps.push({ to: 'ready', at: finished, by: technician });
 			const handedBack = new Date(finished.getTime() + random.between(0.5, 4) * DAY);
-			if (handedBack.getTime() < now.getTime()) steps.push({ to: 'picked_up', at: handedBack, by: staff.writer });
+			if (handedBack.getTime() < now.getTime()) {
+				steps.push({ to: 'picked_up', at: handedBack, by: staff.writer });
+				paymentPlans.push({ jobIndex: i, due: 'rest', at: handedBack });
+			}
 			if (outcome === 'repaired' && finished.getTime() < now.getTime()) {
 				// Hours really spent: most jobs near the book time, some well over it.
 				const billed = lines.filter((l) => l.kind === 'labour').reduce((sum, l) => sum + Number(l.hours), 0);
@@ -330,6 +344,27 @@ export async function seedDemoHistory(shopId: string, staff: HistoryStaff, now =
 					versionHash: version.contentHash,
 					createdAt: d.at
 				};
+			}),
+			{ transaction }
+		);
+		// Amounts come from the answered version's own figures, as the payments page works them out.
+		const answered = new Map(decisions.map((d) => [d.jobIndex, d]));
+		await Payment.bulkCreate(
+			paymentPlans.flatMap((plan) => {
+				const result = newest.get(plan.jobIndex)!.result as unknown as PricingResult;
+				const decision = answered.get(plan.jobIndex)!;
+				const option = decision.optionIndex === null ? result.options.find((o) => o.kind === 'decline') : result.options[decision.optionIndex];
+				if (!option) return [];
+				const deposit = decision.decision === 'approved' ? new Decimal(option.deposit) : new Decimal(0);
+				const amount = plan.due === 'deposit' ? deposit : new Decimal(option.authorised).minus(deposit);
+				if (amount.lte(0)) return [];
+				return [{
+					shopId, jobId: jobs[plan.jobIndex].id, quoteId: quotes[plan.jobIndex].id,
+					kind: plan.due === 'deposit' ? ('deposit' as const) : ('balance' as const),
+					method: random.chance(0.6) ? ('terminal' as const) : ('cash' as const),
+					amount: amount.toFixed(2), currency: shopSettings.currency, status: 'paid' as const,
+					reference: `Receipt ${jobRows[plan.jobIndex].number}${plan.due === 'deposit' ? '-D' : '-B'}`, createdBy: staff.writer, paidAt: plan.at, createdAt: plan.at, updatedAt: plan.at
+				}];
 			}),
 			{ transaction }
 		);
