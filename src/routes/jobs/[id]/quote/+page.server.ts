@@ -62,6 +62,8 @@ export const load: PageServerLoad = async ({ params }) => {
 		currency: pricing.currency,
 		labourRate: pricing.labourRate.toFixed(currencyDigits(pricing.currency)),
 		seesCosts,
+		/** No labour cost set: every labour line would show its whole price as margin. */
+		labourCostUnset: seesCosts && pricing.labourCostRate.isZero(),
 		targetMarginPercent: pricing.targetMarginPercent.toString(),
 		canSend: SENDERS.includes(user.role),
 		canRevoke: REVOKERS.includes(user.role),
