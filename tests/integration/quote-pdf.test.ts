@@ -243,6 +243,9 @@ describe('estimate PDF', () => {
 			expect(signed).toContain('network address 203.0.113.9');
 			expect(signed).toContain('option “Find and fix in stages”');
 			expect(signed).toContain(`of estimate ${hash}`);
+			// The approved option carries the tag now, not the shop's recommendation.
+			expect(signed).toMatch(/Option 2: Find and fix in stages\s+Approved/);
+			expect(signed).not.toContain('Recommended');
 			expect(signed).not.toContain('Signature');
 		}
 	});

@@ -9,13 +9,16 @@ import * as payments from '$lib/server/payments';
 
 const resolveSchema = z.object({ eventId: z.uuid({ error: 'Choose a flagged event from the list.' }) });
 
+/** The newest this many matching payments are listed; the CSV export holds them all. */
+const SHOWN = 100;
+
 export const load: PageServerLoad = async ({ url }) => {
 	const user = requireRole(MANAGERS);
 	const parsed = payments.parseFilters(url.searchParams);
 	const filters = parsed.success ? parsed.data : {};
 	const problems = parsed.success ? [] : parsed.error.issues.map((i) => i.message);
 	const [list, refunds, flagged] = await Promise.all([
-		payments.listForShop(user.shopId, filters, 500),
+		payments.listForShop(user.shopId, filters, SHOWN + 1),
 		payments.refundsForShop(user.shopId, filters),
 		payments.flaggedForShop(user.shopId)
 	]);
@@ -23,7 +26,9 @@ export const load: PageServerLoad = async ({ url }) => {
 		filters: Object.fromEntries(['status', 'kind', 'method', 'from', 'to', 'job'].map((k) => [k, url.searchParams.get(k) ?? ''])),
 		problems,
 		csvQuery: parsed.success ? url.searchParams.toString() : '',
-		payments: list,
+		payments: list.slice(0, SHOWN),
+		/** More payments match than the page lists: the filters or the CSV reach the rest. */
+		more: list.length > SHOWN,
 		refunds,
 		flagged,
 		api: payments.describeApi(),

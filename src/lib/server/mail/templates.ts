@@ -70,8 +70,8 @@ function renderHtml(title: string, greeting: string, blocks: Block[], shop: Shop
 						block.rows
 							.map(
 								([label, value]) =>
-									`<tr><td style="padding:4px 12px 4px 0;color:#5b5248;vertical-align:top;white-space:nowrap">${escapeHtml(label)}</td>` +
-									`<td style="padding:4px 0;font-weight:600">${escapeHtml(value)}</td></tr>`
+									`<tr><td style="padding:4px 12px 4px 0;color:#5b5248;vertical-align:top;width:40%">${escapeHtml(label)}</td>` +
+									`<td style="padding:4px 0;font-weight:600;vertical-align:top;overflow-wrap:anywhere">${escapeHtml(value)}</td></tr>`
 							)
 							.join('') +
 						'</table>'

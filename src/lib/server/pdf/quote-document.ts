@@ -67,6 +67,7 @@ export interface RepairComparison {
 export interface QuoteApproval {
 	decision: 'approved' | 'declined';
 	optionLabel: string | null;
+	optionIndex: number | null;
 	signerName: string | null;
 	clientAddress: string;
 	versionHash: string;
@@ -263,6 +264,7 @@ export async function quoteDocument(shopId: string, versionId: string): Promise<
 			? {
 					decision: approval.decision,
 					optionLabel: approval.optionLabel,
+					optionIndex: approval.optionIndex,
 					signerName: approval.signerName,
 					clientAddress: approval.clientAddress,
 					versionHash: approval.versionHash,

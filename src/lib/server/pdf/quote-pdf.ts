@@ -357,14 +357,17 @@ function optionSection(page: Page, d: QuoteDocument, option: QuoteOption, positi
 	page.y += 8;
 	page.ensure(70);
 	const top = page.y;
-	const tagWidth = option.recommended ? 96 : 0;
+	// Once this version is answered, the option the customer approved carries the tag; before, the shop's recommendation.
+	const answered = d.approval?.forThisVersion ? d.approval : null;
+	const tag = answered ? (answered.decision === 'approved' && answered.optionIndex === option.index ? 'Approved' : null) : option.recommended ? 'Recommended' : null;
+	const tagWidth = tag ? 96 : 0;
 	page.style('bold', SIZE.sub + 1, COLOUR.ink);
 	doc.text(title, page.left, top, { width: page.width - tagWidth - 8 });
 	const titleBottom = doc.y;
-	if (option.recommended) {
+	if (tag) {
 		doc.save().roundedRect(page.left + page.width - tagWidth, top - 1, tagWidth, 15, 3).fill(COLOUR.mossLight).restore();
 		page.style('bold', SIZE.small, COLOUR.moss);
-		doc.text('Recommended', page.left + page.width - tagWidth, top + 2.5, { width: tagWidth, align: 'center', lineBreak: false });
+		doc.text(tag, page.left + page.width - tagWidth, top + 2.5, { width: tagWidth, align: 'center', lineBreak: false });
 	}
 	page.y = titleBottom + 1;
 	page.paragraph(kind, { size: SIZE.small, colour: COLOUR.soft, gap: 4 });
