@@ -85,6 +85,15 @@ describe('estimate layout', () => {
 		expect(pages.join('\n')).toContain(euro.format(doc.options[0].total as unknown as number));
 	});
 
+	it("keeps an option's totals on the page of its last line, however many lines it has", async () => {
+		// Every length from one page to two: somewhere the totals would otherwise open a page alone.
+		for (let lineCount = 8; lineCount <= 26; lineCount++) {
+			const { pages } = read(await renderQuotePdf(documentFor('USD', lineCount)));
+			const withTotals = pages.find((page) => page.includes('Balance on completion'))!;
+			expect(withTotals, `${lineCount} lines`).toContain(`(${lineCount})`);
+		}
+	});
+
 	it('copies no cost, gross profit, margin or markup from the engine into the document', () => {
 		const doc = documentFor('USD', 3);
 		const keys = new Set<string>();

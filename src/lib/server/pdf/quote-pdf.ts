@@ -58,6 +58,12 @@ interface Row {
 }
 
 /** Cursor and drawing helpers over one pdfkit document. */
+type Pair = { label: string; value: string; bold?: boolean };
+/** Widths of the totals block: labels, then amounts, right-aligned. */
+const TOTALS = { label: 230, value: 95 } as const;
+/** Space below a table. */
+const AFTER_TABLE = 4;
+
 class Page {
 	readonly left: number;
 	readonly width: number;
@@ -143,8 +149,12 @@ class Page {
 		this.y += 3;
 	}
 
-	/** A table whose header row is drawn again at the top of each page it runs onto. */
-	table(columns: Column[], rows: Row[]) {
+	/**
+	 * A table whose header row is drawn again at the top of each page it runs onto. `keepWithNext`
+	 * is the height of what follows and belongs with it (an option's totals): the last row goes to
+	 * the next page rather than leave that block alone at the top of one.
+	 */
+	table(columns: Column[], rows: Row[], { keepWithNext = 0 } = {}) {
 		const doc = this.doc;
 		const headerHeight = Math.max(...columns.map((c) => this.height(c.header, c.width - 2 * CELL_PAD, 'bold', SIZE.small, 0))) + 2 * CELL_PAD;
 		const drawHeader = () => {
@@ -161,10 +171,11 @@ class Page {
 		const rowHeights = rows.map(
 			(row) => Math.max(...row.cells.map((cell, i) => this.height(cell, columns[i].width - 2 * CELL_PAD, row.bold ? 'bold' : 'body', SIZE.body))) + 2 * CELL_PAD
 		);
-		this.ensure(headerHeight + (rowHeights[0] ?? 0));
+		this.ensure(headerHeight + (rowHeights[0] ?? 0) + (rows.length === 1 && keepWithNext ? keepWithNext + AFTER_TABLE : 0));
 		drawHeader();
 		rows.forEach((row, r) => {
-			if (this.y + rowHeights[r] > this.bottom) {
+			const tail = r === rows.length - 1 && keepWithNext ? keepWithNext + AFTER_TABLE : 0;
+			if (this.y + rowHeights[r] + tail > this.bottom && r > 0) {
 				this.newPage();
 				drawHeader();
 			}
@@ -179,16 +190,16 @@ class Page {
 			this.y = top + rowHeights[r];
 			this.rule();
 		});
-		this.y += 4;
+		this.y += AFTER_TABLE;
 	}
 
 	/** Label and amount pairs aligned to the right edge, kept on one page. */
-	totals(pairs: { label: string; value: string; bold?: boolean }[]) {
-		const valueWidth = 95;
-		const labelWidth = 230;
+	totals(pairs: Pair[]) {
+		const valueWidth = TOTALS.value;
+		const labelWidth = TOTALS.label;
 		const x = this.left + this.width - valueWidth - labelWidth;
-		const heights = pairs.map((p) => this.height(p.label, labelWidth - CELL_PAD, p.bold ? 'bold' : 'body', SIZE.body) + 3);
-		this.ensure(heights.reduce((a, b) => a + b, 0) + 4);
+		const heights = this.totalsRows(pairs);
+		this.ensure(this.totalsHeight(pairs));
 		pairs.forEach((pair, i) => {
 			this.style(pair.bold ? 'bold' : 'body', SIZE.body, pair.bold ? COLOUR.ink : COLOUR.soft);
 			const top = this.y;
@@ -200,12 +211,28 @@ class Page {
 		this.y += 4;
 	}
 
+	private totalsRows(pairs: Pair[]): number[] {
+		return pairs.map((p) => this.height(p.label, TOTALS.label - CELL_PAD, p.bold ? 'bold' : 'body', SIZE.body) + 3);
+	}
+
+	/** How tall `totals(pairs)` draws. */
+	totalsHeight(pairs: Pair[]): number {
+		return this.totalsRows(pairs).reduce((a, b) => a + b, 0) + 4;
+	}
+
+	/** How tall `box(title, lines)` draws. */
+	boxHeight(title: string, lines: string[]): number {
+		const inner = this.width - 20;
+		const titleHeight = title ? this.height(title, inner, 'bold', SIZE.sub) + 3 : 0;
+		return titleHeight + lines.reduce((sum, l) => sum + this.height(l, inner, 'body', SIZE.body) + 3, 0) + 16;
+	}
+
 	/** A shaded box around a few paragraphs (notices, safety). */
 	box(title: string, lines: string[], fill: string, accent: string) {
 		const inner = this.width - 20;
 		const titleHeight = title ? this.height(title, inner, 'bold', SIZE.sub) + 3 : 0;
 		const bodyHeights = lines.map((l) => this.height(l, inner, 'body', SIZE.body) + 3);
-		const total = titleHeight + bodyHeights.reduce((a, b) => a + b, 0) + 16;
+		const total = this.boxHeight(title, lines);
 		this.ensure(total);
 		const top = this.y;
 		this.doc.save().rect(this.left, top, this.width, total).fill(fill).restore();
@@ -374,15 +401,7 @@ function optionSection(page: Page, d: QuoteDocument, option: QuoteOption, positi
 
 	const tax = d.taxPercent ? `Tax (${sayPercent(d.taxPercent)})` : 'Tax';
 	if (option.staged) {
-		option.staged.stages.forEach((stage, k) => {
-			page.subheading(`Stage ${k + 1}: ${stage.label}`, 50);
-			page.paragraph(
-				`Ends the fault ${sayPercent(stage.likelihoodPercent)} of the time; the work gets this far ${sayPercent(stage.reachPercent)} of the time.`,
-				{ size: SIZE.small, colour: COLOUR.soft, gap: 3 }
-			);
-			page.table(lineColumns(page.width), [...lineRows(stage.lines, money), { cells: [`Stage ${k + 1} total, with tax`, '', '', money(stage.total)], bold: true }]);
-		});
-		page.totals([
+		const pairs: Pair[] = [
 			{ label: 'Subtotal, every stage', value: money(option.subtotal) },
 			{ label: `${tax}, every stage`, value: money(option.tax) },
 			{ label: 'Total if every stage is needed (worst case)', value: money(option.total), bold: true },
@@ -390,11 +409,22 @@ function optionSection(page: Page, d: QuoteDocument, option: QuoteOption, positi
 			{ label: 'Not to exceed: you authorise up to', value: money(option.staged.notToExceed), bold: true },
 			{ label: 'Deposit due on approval', value: money(option.deposit) },
 			{ label: 'Balance on completion, at most', value: money(option.balance) }
-		]);
+		];
+		const stages = option.staged.stages;
+		stages.forEach((stage, k) => {
+			page.subheading(`Stage ${k + 1}: ${stage.label}`, 50);
+			page.paragraph(
+				`Ends the fault ${sayPercent(stage.likelihoodPercent)} of the time; the work gets this far ${sayPercent(stage.reachPercent)} of the time.`,
+				{ size: SIZE.small, colour: COLOUR.soft, gap: 3 }
+			);
+			page.table(lineColumns(page.width), [...lineRows(stage.lines, money), { cells: [`Stage ${k + 1} total, with tax`, '', '', money(stage.total)], bold: true }], {
+				keepWithNext: k === stages.length - 1 ? page.totalsHeight(pairs) : 0
+			});
+		});
+		page.totals(pairs);
 		page.paragraph('The shop stops and asks you before spending more than the not-to-exceed amount.', { size: SIZE.small, colour: COLOUR.soft });
 	} else {
-		page.table(lineColumns(page.width), lineRows(option.lines, money));
-		const pairs = [
+		const pairs: Pair[] = [
 			{ label: 'Subtotal', value: money(option.subtotal) },
 			{ label: tax, value: money(option.tax) },
 			{ label: 'Total', value: money(option.total), bold: true }
@@ -402,6 +432,7 @@ function optionSection(page: Page, d: QuoteDocument, option: QuoteOption, positi
 		if (option.kind !== 'decline') {
 			pairs.push({ label: 'Deposit due on approval', value: money(option.deposit) }, { label: 'Balance on completion', value: money(option.balance) });
 		}
+		page.table(lineColumns(page.width), lineRows(option.lines, money), { keepWithNext: page.totalsHeight(pairs) });
 		page.totals(pairs);
 		if (option.kind === 'decline') page.paragraph('Due when you collect the unit.', { size: SIZE.small, colour: COLOUR.soft });
 	}
@@ -435,7 +466,7 @@ function comparisonSection(page: Page, d: QuoteDocument, money: (s: string) => s
 }
 
 function termsSection(page: Page, d: QuoteDocument, money: (s: string) => string) {
-	page.heading('Safety', 50);
+	page.heading('Safety', page.boxHeight('', [SAFETY_CAUTIONS]));
 	page.box('', [SAFETY_CAUTIONS], COLOUR.amberLight, COLOUR.amber);
 
 	page.heading('Terms');
