@@ -1,6 +1,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { QueryTypes } from 'sequelize';
 import { COUNT_LIMIT } from '../../src/lib/board-query';
+import { JOB_STATUSES, type JobStatus } from '../../src/lib/domain';
 import { db } from '../../src/lib/server/db';
 import * as jobs from '../../src/lib/server/jobs';
 import { signedIn, type Client } from '../helpers/client';
@@ -205,6 +206,39 @@ describe('job board on more jobs than a page', () => {
 		expect(quoted).toMatchObject({ total: 5, pages: 1, exact: false, hasNext: false });
 		expect(quoted.rows.every((r: { status: string }) => r.status === 'quoted')).toBe(true);
 		expect((await get('')).counts.quoted).toBe(5);
+	});
+});
+
+describe('the board sorted by status', () => {
+	it('follows the path a job takes through the shop, not the alphabet, with and without a search', async () => {
+		const shop = await createShop('Status order');
+		const owner = await signedIn(shop.staff.owner.email, shop.staff.owner.password);
+		// Alphabetically approved < checked_in < quoted < ready; along the path it is the other way about.
+		const order: JobStatus[] = ['ready', 'quoted', 'approved', 'checked_in'];
+		for (const status of order) {
+			const { job } = await createJob(shop, { customerName: `Order ${status}` });
+			await db().query('UPDATE jobs SET status = :status WHERE id = :id', { replacements: { status, id: job.id } });
+		}
+		const path = JOB_STATUSES.filter((s) => order.includes(s));
+		for (const query of ['sort=status&dir=asc', 'q=order&sort=status&dir=asc']) {
+			const rows = (await owner.get(`/api/jobs?${query}`)).json().rows as { status: JobStatus }[];
+			expect(rows.map((r) => r.status), query).toEqual(path);
+		}
+		const back = (await owner.get('/api/jobs?sort=status&dir=desc')).json().rows as { status: JobStatus }[];
+		expect(back.map((r) => r.status)).toEqual([...path].reverse());
+	});
+
+	it("the stored rank of every status is its place in the shop's list of statuses", async () => {
+		const { job } = await createJob(await createShop('Status ranks'));
+		await db()
+			.transaction(async (transaction) => {
+				for (const [i, status] of JOB_STATUSES.entries()) {
+					const [rows] = await db().query('UPDATE jobs SET status = :status WHERE id = :id RETURNING status_rank AS rank', { replacements: { status, id: job.id }, transaction });
+					expect((rows as { rank: number }[])[0].rank, status).toBe(i + 1);
+				}
+				throw new Error('rolled back');
+			})
+			.catch((e: Error) => expect(e.message).toBe('rolled back'));
 	});
 });
 

@@ -7,7 +7,7 @@ export const SORTS: Record<SortKey, string> = {
 	number: 'j.number',
 	customer: 'j.customer_name',
 	unit: 'j.unit_label',
-	status: 'j.status',
+	status: 'j.status_rank', // the path a job takes through the shop (migration 0014), not the alphabet
 	technician: 'j.technician_name',
 	promised: 'j.promised_on',
 	changed: 'j.status_changed_at',
@@ -119,7 +119,7 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	// Sorted by status, the counts say which status the page falls in; when it lies within one, the
 	// walk goes along that status's jobs alone.
 	if (query.sort === 'status') {
-		const laidOut = (Object.keys(kept) as JobStatus[]).filter((s) => counted.includes(s));
+		const laidOut = JOB_STATUSES.filter((s) => counted.includes(s));
 		if (query.dir === 'desc') laidOut.reverse();
 		let before = 0;
 		for (const status of laidOut) {
@@ -128,8 +128,8 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 				continue;
 			}
 			if (offset + take <= before + counts[status]) {
-				values.within = status;
-				return answer(query, await readPage(offset - before, counts[status], 'j.id', ' AND j.status = :within'), total, true, counts);
+				values.within = JOB_STATUSES.indexOf(status) + 1;
+				return answer(query, await readPage(offset - before, counts[status], 'j.id', ' AND j.status_rank = :within'), total, true, counts);
 			}
 			break;
 		}
@@ -148,11 +148,8 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	}
 }
 
-/**
- * Jobs per status, from `job_status_counts` (kept by triggers), in the database's own order of
- * statuses: a board sorted by status is laid out in that order.
- */
-const countsSql = (byTechnician: boolean) => `SELECT json_object_agg(status, n ORDER BY status) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
+/** Jobs per status, from `job_status_counts` (kept by triggers). */
+const countsSql = (byTechnician: boolean) => `SELECT json_object_agg(status, n) FROM (SELECT status, sum(n)::int AS n FROM job_status_counts
 	  WHERE shop_id = :shopId${byTechnician ? ' AND technician_key = :techKey' : ''} GROUP BY status) c`;
 
 const noneYet = () => Object.fromEntries(JOB_STATUSES.map((s) => [s, 0])) as Record<JobStatus, number>;

@@ -14,6 +14,7 @@ import * as ageCounts from './migrations/20261202-0010-board-age-counts';
 import * as searchWalk from './migrations/20261202-0011-board-search-walk';
 import * as repairTimestamps from './migrations/20261202-0012-repair-timestamps';
 import * as technicianShares from './migrations/20261202-0013-technician-shares';
+import * as statusOrder from './migrations/20261202-0014-board-status-order';
 
 export type Migration = MigrationFn<Sequelize>;
 
@@ -31,7 +32,8 @@ const migrations: { name: string; module: { up: Migration; down: Migration } }[]
 	{ name: '20261202-0010-board-age-counts', module: ageCounts },
 	{ name: '20261202-0011-board-search-walk', module: searchWalk },
 	{ name: '20261202-0012-repair-timestamps', module: repairTimestamps },
-	{ name: '20261202-0013-technician-shares', module: technicianShares }
+	{ name: '20261202-0013-technician-shares', module: technicianShares },
+	{ name: '20261202-0014-board-status-order', module: statusOrder }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {
