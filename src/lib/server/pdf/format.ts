@@ -1,4 +1,3 @@
-import { estimateReference } from '../../domain';
 import { sayDay } from '../../dates';
 import { trimZeros } from '../../pricing/format';
 
@@ -39,6 +38,3 @@ export function sayDateTime(iso: string): string {
 export function sayPercent(percent: string): string {
 	return `${trimZeros(percent)}%`;
 }
-
-/** The short form of a content hash printed on every page and in the approval record. */
-export const shortHash = estimateReference;

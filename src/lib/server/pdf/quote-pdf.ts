@@ -1,7 +1,8 @@
 import PDFDocument from 'pdfkit';
 import { Dec } from '../../pricing/money';
 import { registerFonts } from './fonts';
-import { moneyFormatter, sayDate, sayDateTime, sayPercent, shortHash } from './format';
+import { estimateReference } from '../../domain';
+import { moneyFormatter, sayDate, sayDateTime, sayPercent } from './format';
 import type { QuoteDocument, QuoteLine, QuoteOption, RepairComparison } from './quote-document';
 
 // The estimate as a PDF: the customer's record of what was found, what each option costs and
@@ -57,13 +58,14 @@ interface Row {
 	colours?: (string | undefined)[];
 }
 
-/** Cursor and drawing helpers over one pdfkit document. */
 type Pair = { label: string; value: string; bold?: boolean };
+const sum = (values: number[]) => values.reduce((a, b) => a + b, 0);
 /** Widths of the totals block: labels, then amounts, right-aligned. */
 const TOTALS = { label: 230, value: 95 } as const;
 /** Space below a table. */
 const AFTER_TABLE = 4;
 
+/** Cursor and drawing helpers over one pdfkit document. */
 class Page {
 	readonly left: number;
 	readonly width: number;
@@ -171,11 +173,12 @@ class Page {
 		const rowHeights = rows.map(
 			(row) => Math.max(...row.cells.map((cell, i) => this.height(cell, columns[i].width - 2 * CELL_PAD, row.bold ? 'bold' : 'body', SIZE.body))) + 2 * CELL_PAD
 		);
-		this.ensure(headerHeight + (rowHeights[0] ?? 0) + (rows.length === 1 && keepWithNext ? keepWithNext + AFTER_TABLE : 0));
+		const tail = keepWithNext ? keepWithNext + AFTER_TABLE : 0;
+		const last = rows.length - 1;
+		this.ensure(headerHeight + (rowHeights[0] ?? 0) + (last === 0 ? tail : 0));
 		drawHeader();
 		rows.forEach((row, r) => {
-			const tail = r === rows.length - 1 && keepWithNext ? keepWithNext + AFTER_TABLE : 0;
-			if (this.y + rowHeights[r] + tail > this.bottom && r > 0) {
+			if (r > 0 && this.y + rowHeights[r] + (r === last ? tail : 0) > this.bottom) {
 				this.newPage();
 				drawHeader();
 			}
@@ -199,7 +202,7 @@ class Page {
 		const labelWidth = TOTALS.label;
 		const x = this.left + this.width - valueWidth - labelWidth;
 		const heights = this.totalsRows(pairs);
-		this.ensure(this.totalsHeight(pairs));
+		this.ensure(sum(heights) + 4);
 		pairs.forEach((pair, i) => {
 			this.style(pair.bold ? 'bold' : 'body', SIZE.body, pair.bold ? COLOUR.ink : COLOUR.soft);
 			const top = this.y;
@@ -217,22 +220,25 @@ class Page {
 
 	/** How tall `totals(pairs)` draws. */
 	totalsHeight(pairs: Pair[]): number {
-		return this.totalsRows(pairs).reduce((a, b) => a + b, 0) + 4;
+		return sum(this.totalsRows(pairs)) + 4;
+	}
+
+	/** The measures of `box(title, lines)`: its text width, title height, each line's height and the whole. */
+	private boxLayout(title: string, lines: string[]) {
+		const inner = this.width - 20;
+		const titleHeight = title ? this.height(title, inner, 'bold', SIZE.sub) + 3 : 0;
+		const bodyHeights = lines.map((l) => this.height(l, inner, 'body', SIZE.body) + 3);
+		return { inner, titleHeight, bodyHeights, total: titleHeight + sum(bodyHeights) + 16 };
 	}
 
 	/** How tall `box(title, lines)` draws. */
 	boxHeight(title: string, lines: string[]): number {
-		const inner = this.width - 20;
-		const titleHeight = title ? this.height(title, inner, 'bold', SIZE.sub) + 3 : 0;
-		return titleHeight + lines.reduce((sum, l) => sum + this.height(l, inner, 'body', SIZE.body) + 3, 0) + 16;
+		return this.boxLayout(title, lines).total;
 	}
 
 	/** A shaded box around a few paragraphs (notices, safety). */
 	box(title: string, lines: string[], fill: string, accent: string) {
-		const inner = this.width - 20;
-		const titleHeight = title ? this.height(title, inner, 'bold', SIZE.sub) + 3 : 0;
-		const bodyHeights = lines.map((l) => this.height(l, inner, 'body', SIZE.body) + 3);
-		const total = this.boxHeight(title, lines);
+		const { inner, titleHeight, bodyHeights, total } = this.boxLayout(title, lines);
 		this.ensure(total);
 		const top = this.y;
 		this.doc.save().rect(this.left, top, this.width, total).fill(fill).restore();
@@ -288,7 +294,7 @@ function customerAndUnit(page: Page, d: QuoteDocument) {
 	const customerLines = [d.customer.phone, d.customer.email].filter(Boolean);
 	const unitLines = d.unit.details.map((item) => `${item.label}: ${item.value}`);
 	const column = (title: string, name: string, lines: string[]) =>
-		page.height(title, half, 'bold', SIZE.small) + page.height(name, half, 'bold', SIZE.sub) + lines.reduce((sum, l) => sum + page.height(l, half, 'body', SIZE.body) + 1, 0);
+		page.height(title, half, 'bold', SIZE.small) + page.height(name, half, 'bold', SIZE.sub) + sum(lines.map((l) => page.height(l, half, 'body', SIZE.body) + 1));
 	page.ensure(Math.max(column('Customer', d.customer.name, customerLines), column('Unit', d.unit.title, unitLines)) + 8);
 	const top = page.y;
 	const draw = (x: number, title: string, name: string, lines: string[]) => {
@@ -490,8 +496,8 @@ function approvalSection(page: Page, d: QuoteDocument) {
 	if (a && a.forThisVersion) {
 		const text =
 			a.decision === 'approved'
-				? `Approved by ${a.signerName ?? 'the customer'} on ${sayDateTime(a.at)}: option “${a.optionLabel ?? '—'}” of estimate ${shortHash(a.versionHash)}, signed online from network address ${a.clientAddress}.`
-				: `Declined on ${sayDateTime(a.at)}: estimate ${shortHash(a.versionHash)}, answered online from network address ${a.clientAddress}.`;
+				? `Approved by ${a.signerName ?? 'the customer'} on ${sayDateTime(a.at)}: option “${a.optionLabel ?? '—'}” of estimate ${estimateReference(a.versionHash)}, signed online from network address ${a.clientAddress}.`
+				: `Declined on ${sayDateTime(a.at)}: estimate ${estimateReference(a.versionHash)}, answered online from network address ${a.clientAddress}.`;
 		page.box(a.decision === 'approved' ? 'Approved' : 'Declined', a.reason ? [text, `Reason given: ${a.reason}`] : [text], a.decision === 'approved' ? COLOUR.mossLight : COLOUR.paper, a.decision === 'approved' ? COLOUR.moss : COLOUR.soft);
 		return;
 	}
@@ -520,7 +526,7 @@ function approvalSection(page: Page, d: QuoteDocument) {
 
 function footers(doc: PDFDocument, d: QuoteDocument) {
 	const range = doc.bufferedPageRange();
-	const label = `${d.shop.name}  ·  Estimate for job ${d.job.number}, version ${d.version.number}  ·  ${shortHash(d.version.contentHash)}`;
+	const label = `${d.shop.name}  ·  Estimate for job ${d.job.number}, version ${d.version.number}  ·  ${estimateReference(d.version.contentHash)}`;
 	for (let i = range.start; i < range.start + range.count; i++) {
 		doc.switchToPage(i);
 		const width = doc.page.width - MARGIN.left - MARGIN.right;
