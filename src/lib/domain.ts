@@ -1,5 +1,5 @@
-import { today } from './dates';
 // The shop's vocabulary, shared by server and pages: kinds, statuses and their plain-word labels.
+import { today } from './dates';
 
 export const UNIT_KINDS = ['portable', 'inverter', 'standby', 'pressure_washer', 'other'] as const;
 export type UnitKind = (typeof UNIT_KINDS)[number];
@@ -74,9 +74,14 @@ export function isOverdue(promisedOn: string | null, status: JobStatus, now: Dat
 	return promisedOn !== null && !['ready', 'picked_up', 'declined'].includes(status) && promisedOn.slice(0, 10) < today(now);
 }
 
+/** A status's place along a job's path, from 1 (the `status_rank` the board sorts by, migration 0014). */
+export function statusRank(status: JobStatus): number {
+	return JOB_STATUSES.indexOf(status) + 1;
+}
+
 /** A move back (a quoted unit taken down again for a second look) is named and shown as one. */
 export function isStepBack(from: JobStatus, to: JobStatus): boolean {
-	return JOB_STATUSES.indexOf(to) < JOB_STATUSES.indexOf(from);
+	return statusRank(to) < statusRank(from);
 }
 
 export function moveLabel(from: JobStatus, to: JobStatus): string {

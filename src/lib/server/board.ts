@@ -1,4 +1,4 @@
-import { JOB_STATUSES, type JobStatus } from '../domain';
+import { JOB_STATUSES, statusRank, type JobStatus } from '../domain';
 import { prepared } from './db/prepared';
 import { COUNT_LIMIT, type BoardPage, type BoardQuery, type BoardRow, type SortKey } from '../board-query';
 export { parseBoardQuery, toSearchParams } from '../board-query';
@@ -128,7 +128,7 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 				continue;
 			}
 			if (offset + take <= before + counts[status]) {
-				values.within = JOB_STATUSES.indexOf(status) + 1;
+				values.within = statusRank(status);
 				return answer(query, await readPage(offset - before, counts[status], 'j.id', ' AND j.status_rank = :within'), total, true, counts);
 			}
 			break;
