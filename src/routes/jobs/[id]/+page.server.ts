@@ -6,7 +6,7 @@ import { formatMoney } from '$lib/pricing/money';
 import { BENCH, FRONT_DESK, MANAGERS, STAFF } from '$lib/roles';
 import { attempt } from '$lib/server/actions';
 import { requireRole } from '$lib/server/auth/guard';
-import { Quote, QuoteVersion } from '$lib/server/db/models';
+import { QuoteVersion } from '$lib/server/db/models';
 import { echo, parseForm } from '$lib/server/forms';
 import * as jobs from '$lib/server/jobs';
 import * as payments from '$lib/server/payments';
@@ -36,8 +36,8 @@ export const load: PageServerLoad = async ({ params }) => {
 		settings.get(user.shopId),
 		payments.summaryFor(user.shopId, job.id)
 	]);
-	const { approval } = money.terms;
-	const quote = await Quote.findOne({ where: { shopId: user.shopId, jobId: job.id }, attributes: ['id', 'editedSinceSend'] });
+	// The money terms have already read the job's quote and its answer.
+	const { approval, quote } = money.terms;
 	const moves = jobs.movesFor(job.status, user.role);
 	const sent = quote ? await QuoteVersion.findAll({ where: { shopId: user.shopId, quoteId: quote.id }, attributes: ['number', 'sentAt', 'validUntil'], order: [['number', 'DESC']] }) : [];
 	return {
