@@ -82,8 +82,9 @@ export async function add(actor: Actor, jobId: string, input: ReadingInput) {
 	return reading;
 }
 
+/** A job's readings, oldest first. */
 export function list(shopId: string, jobId: string) {
-	return Reading.findAll({ where: { shopId, jobId }, order: [['createdAt', 'ASC']] });
+	return Reading.findAll({ where: { shopId, jobId }, order: [['createdAt', 'ASC'], ['id', 'ASC']] });
 }
 
 export async function remove(actor: Actor, jobId: string, readingId: string) {
@@ -105,7 +106,7 @@ export function show(reading: Pick<Reading, 'value' | 'overRange' | 'unit'>): st
  */
 export async function forCustomer(shopId: string, job: { id: string; specSheetId: string | null }): Promise<Reading[]> {
 	const [taken, current] = await Promise.all([
-		Reading.findAll({ where: { shopId, jobId: job.id }, order: [['createdAt', 'ASC'], ['id', 'ASC']] }),
+		list(shopId, job.id),
 		job.specSheetId ? SpecItem.findAll({ where: { shopId, sheetId: job.specSheetId }, attributes: ['id'] }) : []
 	]);
 	const onSheet = new Set(current.map((i) => i.id));
