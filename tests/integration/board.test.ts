@@ -3,6 +3,7 @@ import { QueryTypes } from 'sequelize';
 import { COUNT_LIMIT } from '../../src/lib/board-query';
 import { JOB_STATUSES, type JobStatus } from '../../src/lib/domain';
 import { db } from '../../src/lib/server/db';
+import * as boardSql from '../../src/lib/server/board';
 import * as jobs from '../../src/lib/server/jobs';
 import { signedIn, type Client } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
@@ -175,7 +176,7 @@ describe('job board on more jobs than a page', () => {
 		}
 	});
 
-	it('past the counting limit it says "more than", still pages, and counts a narrow status exactly', async () => {
+	it('past the counting limit the SQL says "more than" and the index counts; both page alike and count a narrow status exactly', async () => {
 		const [{ unitId, customerId }] = await db().query<{ unitId: string; customerId: string }>(
 			'SELECT unit_id AS "unitId", customer_id AS "customerId" FROM jobs WHERE shop_id = :shop LIMIT 1',
 			{ replacements: { shop: big.id }, type: QueryTypes.SELECT }
@@ -188,23 +189,33 @@ describe('job board on more jobs than a page', () => {
 			   FROM generate_series(1, :many) AS i`,
 			{ replacements: { shop: big.id, unit: unitId, customer: customerId, many } }
 		);
-		const first = await get('q=bulk%20lot&sort=number&dir=asc');
-		expect(first).toMatchObject({ total: null, pages: null, exact: false, hasNext: true });
-		expect(first.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 25 }, (_, i) => 90001 + i));
+		// The API answers from the shop's board index; the same query in SQL alone is `sql`.
+		const both = async (query: string) => {
+			const sql = await boardSql.page(big.id, boardSql.parseBoardQuery(new URLSearchParams(query)), { useIndex: false });
+			const api = await get(query);
+			expect(api.rows).toEqual(sql.rows);
+			return { api, sql };
+		};
+		const first = await both('q=bulk%20lot&sort=number&dir=asc');
+		expect(first.sql).toMatchObject({ total: null, pages: null, exact: false, hasNext: true });
+		expect(first.api).toMatchObject({ total: many, pages: Math.ceil(many / 25), exact: true, hasNext: true });
+		expect(first.api.counts).toMatchObject({ quoted: 5, checked_in: many - 5 });
+		expect(first.api.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 25 }, (_, i) => 90001 + i));
 		// Page 2 lies within the first COUNT_LIMIT + 1 matches in number order; page 3 reaches past
 		// them to the last few: both are the right slice of the whole sorted list.
-		const middle = await get(`q=bulk%20lot&sort=number&dir=asc&per=100&page=2`);
-		expect(middle.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 100 }, (_, i) => 90101 + i));
-		expect(middle.hasNext).toBe(true);
-		const newest = await get(`q=bulk%20lot&sort=customer&dir=desc&per=10&page=21`);
-		expect(newest).toMatchObject({ hasNext: false });
-		expect(newest.rows).toHaveLength(5);
-		const last = await get(`q=bulk%20lot&sort=number&dir=asc&per=100&page=3`);
-		expect(last.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: many - 200 }, (_, i) => 90201 + i));
-		expect(last.hasNext).toBe(false);
-		const quoted = await get('q=bulk%20lot&status=quoted');
-		expect(quoted).toMatchObject({ total: 5, pages: 1, exact: false, hasNext: false });
-		expect(quoted.rows.every((r: { status: string }) => r.status === 'quoted')).toBe(true);
+		const middle = await both(`q=bulk%20lot&sort=number&dir=asc&per=100&page=2`);
+		expect(middle.api.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: 100 }, (_, i) => 90101 + i));
+		expect(middle.sql.hasNext).toBe(true);
+		const newest = await both(`q=bulk%20lot&sort=customer&dir=desc&per=10&page=21`);
+		expect(newest.sql).toMatchObject({ hasNext: false });
+		expect(newest.api.rows).toHaveLength(5);
+		const last = await both(`q=bulk%20lot&sort=number&dir=asc&per=100&page=3`);
+		expect(last.api.rows.map((r: { number: number }) => r.number)).toEqual(Array.from({ length: many - 200 }, (_, i) => 90201 + i));
+		expect(last.sql.hasNext).toBe(false);
+		const quoted = await both('q=bulk%20lot&status=quoted');
+		expect(quoted.sql).toMatchObject({ total: 5, pages: 1, exact: false, hasNext: false });
+		expect(quoted.api).toMatchObject({ total: 5, pages: 1, exact: true, hasNext: false });
+		expect(quoted.api.rows.every((r: { status: string }) => r.status === 'quoted')).toBe(true);
 		expect((await get('')).counts.quoted).toBe(5);
 	});
 });

@@ -1,5 +1,6 @@
 import { JOB_STATUSES, statusRank, type JobStatus } from '../domain';
 import { prepared } from './db/prepared';
+import { BoardIndex, CODE_POINT_COLLATIONS, FIELDS, type IndexedJob } from './board-index';
 import { COUNT_LIMIT, type BoardPage, type BoardQuery, type BoardRow, type SortKey } from '../board-query';
 export { parseBoardQuery, toSearchParams } from '../board-query';
 
@@ -24,7 +25,7 @@ const NO_TECHNICIAN = '00000000-0000-0000-0000-000000000000';
  * (which filters, which sort, page size); the values go as parameters. Each is prepared once per
  * connection, except a search's, which is planned for its words every time.
  */
-export async function page(shopId: string, query: BoardQuery): Promise<BoardPage> {
+export async function page(shopId: string, query: BoardQuery, { useIndex = true } = {}): Promise<BoardPage> {
 	const where: string[] = ['j.shop_id = :shopId'];
 	const offset = (query.page - 1) * query.per;
 	const values: Record<string, unknown> = { shopId, offset };
@@ -69,6 +70,10 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 	const sumOf = (statuses: readonly JobStatus[]) => statuses.reduce((sum: number, s: JobStatus) => sum + counts[s], 0);
 
 	if (words.length || query.age) {
+		// A search or age filter is answered from the shop's board index when one is held (below);
+		// without one, in SQL.
+		const fromIndex = useIndex ? await indexed(shopId, query, words) : null;
+		if (fromIndex) return fromIndex;
 		// The first matches in the sort order — enough to hold the page and one job past the count
 		// limit — with their statuses, in one statement: they are every match when no more than
 		// COUNT_LIMIT come back, and then they count per status and hold the page. The sort indexes
@@ -146,6 +151,137 @@ export async function page(shopId: string, query: BoardQuery): Promise<BoardPage
 		const rows = await prepared<BoardRow>(pageOf(walk(order, take, fromEnd ? of - skip - take : skip, only), order), values);
 		return fromEnd ? rows.reverse() : rows;
 	}
+}
+
+/*
+ * The board index (`board-index.ts`) answers searches and age filters in memory, one per shop,
+ * built from PostgreSQL on the shop's first search and brought up to date on every request: the
+ * statement that reads the page's rows also reads every job written (and every deletion) since the
+ * oldest transaction that was still running when the index last caught up, with the snapshot it
+ * read them in. A shop's index is held while the jobs of all held indexes stay under
+ * MENDWISE_BOARD_INDEX_JOBS (0 turns the index off); the least recently used go first.
+ */
+const INDEX_JOBS = Number(process.env.MENDWISE_BOARD_INDEX_JOBS ?? 500_000);
+/** A shop with up to this many jobs has its index built while its first search waits (a few hundred ms at most); a bigger one is built beside the SQL answer. */
+const BUILD_WHILE_WAITING = 20_000;
+/** More jobs written at once than this and the index is built again rather than brought up to date. */
+const CHANGES_AT_ONCE = 2000;
+
+interface Held {
+	index?: BoardIndex;
+	building?: Promise<void>;
+	/** Jobs written by transactions from this one on may be newer than the index (xid8 as text). */
+	since?: string;
+	/** The snapshot the index last caught up to: later snapshots have a higher xmax, or the same with fewer transactions running. */
+	xmax?: bigint;
+	running?: number;
+	usedAt: number;
+}
+const held = new Map<string, Held>();
+let codePointOrder: Promise<boolean> | undefined;
+
+interface Snapshot { xmin: string; xmax: string; running: number }
+const SNAPSHOT = `pg_snapshot_xmin(x.s)::text AS xmin, pg_snapshot_xmax(x.s)::text AS xmax,
+	(SELECT count(*)::int FROM pg_snapshot_xip(x.s)) AS running`;
+
+/** Drops every held index (tests; a restore of the database under a running app). */
+export function forgetIndexes() {
+	held.clear();
+}
+
+async function indexFor(shopId: string): Promise<BoardIndex | null> {
+	if (!(INDEX_JOBS > 0)) return null;
+	let entry = held.get(shopId);
+	if (!entry) held.set(shopId, (entry = { usedAt: Date.now() }));
+	entry.usedAt = Date.now();
+	if (entry.index) return entry.index;
+	if (!entry.building) {
+		const jobs = Object.values(await statusCounts(shopId)).reduce((sum, n) => sum + n, 0);
+		if (entry.building) return null; // another request started it meanwhile
+		if (jobs > INDEX_JOBS) return null;
+		const building = (entry.building = build(shopId, entry).finally(() => {
+			if (entry.building === building) entry.building = undefined;
+		}));
+		if (jobs <= BUILD_WHILE_WAITING) await building;
+	}
+	return entry.index ?? null;
+}
+
+async function build(shopId: string, entry: Held): Promise<void> {
+	codePointOrder ??= prepared<{ collation: string }>('SELECT datcollate AS collation FROM pg_database WHERE datname = current_database()', {}).then(
+		([row]) => CODE_POINT_COLLATIONS.includes(row.collation)
+	);
+	if (!(await codePointOrder)) return; // the index keeps code point order; the database sorts otherwise
+	try {
+		const [found] = await prepared<Snapshot & { jobs: IndexedJob[] | null }>(
+			`SELECT ${SNAPSHOT}, (SELECT json_agg(j) FROM (SELECT ${FIELDS} FROM jobs j WHERE j.shop_id = :shopId) j) AS jobs
+			   FROM (SELECT pg_current_snapshot() AS s) x`,
+			{ shopId },
+			{ reusePlan: false }
+		);
+		const index = await BoardIndex.load(found.jobs ?? []);
+		if (held.get(shopId) !== entry) return; // forgotten while it was built
+		Object.assign(entry, { index, since: found.xmin, xmax: BigInt(found.xmax), running: found.running });
+		// Keep within the bound, dropping the indexes used longest ago.
+		let total = [...held.values()].reduce((sum, e) => sum + (e.index?.size ?? 0), 0);
+		for (const [shop, other] of [...held].sort((a, b) => a[1].usedAt - b[1].usedAt)) {
+			if (total <= INDEX_JOBS) break;
+			if (other === entry || !other.index) continue;
+			total -= other.index.size;
+			held.delete(shop);
+		}
+	} catch (error) {
+		held.delete(shopId);
+		console.error('board index: could not be built; the board answers in SQL', error);
+	}
+}
+
+/**
+ * A search or age filter answered from the shop's index: the page's ids are chosen in memory, then
+ * one statement reads their rows together with whatever changed since the index last caught up.
+ * If something had changed, the page is chosen again. Null when no index is held (answer in SQL).
+ */
+async function indexed(shopId: string, query: BoardQuery, words: string[]): Promise<BoardPage | null> {
+	const index = await indexFor(shopId);
+	const entry = held.get(shopId);
+	if (!index || !entry) return null;
+	for (let attempt = 0; attempt < 3; attempt++) {
+		const version = index.version;
+		const chosen = index.select(query, words, Date.now() * 1000);
+		if (!chosen) return null;
+		const [found] = await prepared<Snapshot & { changed: IndexedJob[] | null; deleted: string[] | null; page: BoardRow[] | null }>(
+			// Ordered by writer so that even a plan kept for any values walks the index (a few rows).
+			`SELECT ${SNAPSHOT},
+			        (SELECT json_agg(d) FROM (SELECT ${FIELDS} FROM jobs j
+			          WHERE j.shop_id = :shopId AND j.written_by >= :since::xid8 ORDER BY j.written_by LIMIT ${CHANGES_AT_ONCE + 1}) d) AS changed,
+			        (SELECT json_agg(job_id) FROM job_deletions WHERE shop_id = :shopId AND deleted_by >= :since::xid8) AS deleted,
+			        (SELECT json_agg(p) FROM (SELECT ${COLUMNS} FROM jobs j JOIN units u ON u.id = j.unit_id
+			          WHERE j.shop_id = :shopId AND j.id = ANY(:ids::uuid[])) p) AS page
+			   FROM (SELECT pg_current_snapshot() AS s) x`,
+			{ shopId, since: entry.since, ids: chosen.ids }
+		);
+		if (held.get(shopId) !== entry || entry.index !== index) return null;
+		const xmax = BigInt(found.xmax);
+		if (xmax > entry.xmax! || (xmax === entry.xmax && found.running < entry.running!)) {
+			// A later snapshot than the index's: what it shows changed is applied (an earlier one's
+			// rows, read by a request that overtook this one's, could be older than the index).
+			if ((found.changed?.length ?? 0) > CHANGES_AT_ONCE) {
+				held.delete(shopId);
+				return null;
+			}
+			index.apply(found.changed ?? [], found.deleted ?? []);
+			Object.assign(entry, { since: found.xmin, xmax, running: found.running });
+		}
+		if (index.version !== version) continue;
+		const byId = new Map((found.page ?? []).map((row) => [row.id, row]));
+		const rows = chosen.ids.map((id) => byId.get(id)).filter((row): row is BoardRow => row !== undefined);
+		if (rows.length !== chosen.ids.length) {
+			held.delete(shopId); // a job the index holds is not there: start again from PostgreSQL
+			return null;
+		}
+		return answer(query, rows, chosen.total, true, chosen.counts);
+	}
+	return null;
 }
 
 /** Jobs per status, from `job_status_counts` (kept by triggers). */

@@ -15,6 +15,7 @@ import * as searchWalk from './migrations/20261202-0011-board-search-walk';
 import * as repairTimestamps from './migrations/20261202-0012-repair-timestamps';
 import * as technicianShares from './migrations/20261202-0013-technician-shares';
 import * as statusOrder from './migrations/20261202-0014-board-status-order';
+import * as boardIndexChanges from './migrations/20261202-0015-board-index-changes';
 
 export type Migration = MigrationFn<Sequelize>;
 
@@ -33,7 +34,8 @@ const migrations: { name: string; module: { up: Migration; down: Migration } }[]
 	{ name: '20261202-0011-board-search-walk', module: searchWalk },
 	{ name: '20261202-0012-repair-timestamps', module: repairTimestamps },
 	{ name: '20261202-0013-technician-shares', module: technicianShares },
-	{ name: '20261202-0014-board-status-order', module: statusOrder }
+	{ name: '20261202-0014-board-status-order', module: statusOrder },
+	{ name: '20261202-0015-board-index-changes', module: boardIndexChanges }
 ];
 
 export function migrator(sequelize: Sequelize = db()) {

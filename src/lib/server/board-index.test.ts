@@ -1,0 +1,167 @@
+import { describe, expect, it } from 'vitest';
+import fc from 'fast-check';
+import { JOB_STATUSES, statusRank, type JobStatus } from '../domain';
+import { SORT_KEYS, type BoardQuery } from '../board-query';
+import { BoardIndex, codePointKey, type IndexedJob } from './board-index';
+
+// Code point order is the order of UTF-8 bytes (RFC 3629, section 1: "the byte-value lexicographic
+// sorting order of UTF-8 strings is the same as if ordered by character numbers"), which is how
+// PostgreSQL sorts under the C collations. Reference: compare the strings' code points one by one.
+const byCodePoints = (a: string, b: string) => {
+	const x = [...a].map((c) => c.codePointAt(0)!);
+	const y = [...b].map((c) => c.codePointAt(0)!);
+	for (let i = 0; i < Math.min(x.length, y.length); i++) if (x[i] !== y[i]) return x[i] - y[i];
+	return x.length - y.length;
+};
+
+describe('codePointKey', () => {
+	it('makes JavaScript string order code point order', () => {
+		// U+1D49C (a surrogate pair in UTF-16) sorts after U+FF21 by code point, before it by code unit.
+		expect('𝒜' < '\uff21').toBe(true);
+		expect(codePointKey('𝒜')! < codePointKey('\uff21')!).toBe(false);
+		fc.assert(
+			fc.property(fc.string({ unit: 'binary' }), fc.string({ unit: 'binary' }), (a, b) => {
+				const keyed = codePointKey(a)! < codePointKey(b)! ? -1 : codePointKey(a) === codePointKey(b) ? 0 : 1;
+				expect(keyed).toBe(Math.sign(byCodePoints(a, b)));
+			})
+		);
+	});
+
+	it('leaves plain text as it is', () => {
+		expect(codePointKey('Orla Penhallow')).toBe('Orla Penhallow');
+		expect(codePointKey(null)).toBe(null);
+	});
+});
+
+const NOW_US = Date.UTC(2026, 11, 2) * 1000;
+const DAY_US = 86_400_000_000;
+const WORDS = ['orla', 'penhallow', 'no', 'output', 'surge', 'kestrel', 'sn-01', 'sn-02', 'ada', 'émile'];
+
+const job = fc.record({
+	id: fc.uuid(),
+	number: fc.integer({ min: 1, max: 1_000_000 }),
+	status: fc.constantFrom(...JOB_STATUSES),
+	tech: fc.constantFrom(null, 'a0000000-0000-4000-8000-000000000001', 'a0000000-0000-4000-8000-000000000002'),
+	customer: fc.constantFrom('Ada Quell', 'ada quell', 'Émile Roux', '𝒜sh Vale', '\uff21sh Vale', ''),
+	unit: fc.constantFrom('Kestrel K2', 'Harrowgate', ''),
+	promised: fc.constantFrom(null, '2026-12-01', '2026-12-09'),
+	openedDays: fc.integer({ min: 0, max: 40 }),
+	changedDays: fc.integer({ min: 0, max: 40 }),
+	words: fc.subarray(WORDS)
+});
+
+function toJob(j: { id: string; number: number; status: JobStatus; tech: string | null; customer: string; unit: string; promised: string | null; openedDays: number; changedDays: number; words: string[] }, xid: string): IndexedJob {
+	return {
+		id: j.id, number: j.number, status: j.status, rank: statusRank(j.status), tech: j.tech,
+		customer: j.customer, unit: j.unit, techName: j.tech ? (j.tech.endsWith('1') ? 'Rowan' : 'Kit') : null, promised: j.promised,
+		opened: String(NOW_US - j.openedDays * DAY_US - j.number), changed: String(NOW_US - j.changedDays * DAY_US),
+		text: `#${j.number} ${j.customer.toLowerCase()} ${j.words.join(' ')}`, xid
+	};
+}
+
+/** What the board asks, worked out the plain way: filter every job, sort them all, slice. */
+function plainly(jobs: IndexedJob[], query: BoardQuery, words: string[]) {
+	const value = (j: IndexedJob): string | number | null =>
+		({ number: j.number, customer: j.customer, unit: j.unit, status: j.rank, technician: j.techName, promised: j.promised, changed: Number(j.changed), opened: Number(j.opened) })[query.sort];
+	const matches = jobs.filter(
+		(j) =>
+			words.every((w) => j.text.includes(w)) &&
+			(query.tech === 'none' ? j.tech === null : !query.tech || j.tech === query.tech) &&
+			(query.age === 'stale' ? Number(j.changed) < NOW_US - 14 * DAY_US && j.status !== 'picked_up' : !query.age || Number(j.opened) >= NOW_US - Number(query.age) * DAY_US)
+	);
+	const counts = Object.fromEntries(JOB_STATUSES.map((s) => [s, matches.filter((j) => j.status === s).length]));
+	const selected = matches.filter((j) => !query.status.length || query.status.includes(j.status));
+	selected.sort((a, b) => {
+		const [x, y] = [value(a), value(b)];
+		const c = x === y ? 0 : x === null ? 1 : y === null ? -1 : typeof x === 'string' ? byCodePoints(x, y as string) : x - (y as number);
+		return c || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
+	});
+	if (query.dir === 'desc') selected.reverse();
+	const offset = (query.page - 1) * query.per;
+	return { counts, total: selected.length, ids: selected.slice(offset, offset + query.per).map((j) => j.id) };
+}
+
+const queryOf = fc.record({
+	q: fc.subarray(WORDS, { maxLength: 2 }).map((w) => w.join(' ')),
+	status: fc.subarray([...JOB_STATUSES], { maxLength: 2 }),
+	tech: fc.constantFrom('', 'none', 'a0000000-0000-4000-8000-000000000001'),
+	age: fc.constantFrom('' as const, '2' as const, '30' as const, 'stale' as const),
+	sort: fc.constantFrom(...SORT_KEYS),
+	dir: fc.constantFrom('asc' as const, 'desc' as const),
+	page: fc.integer({ min: 1, max: 4 }),
+	per: fc.constantFrom(10, 25)
+});
+
+const unique = (jobs: ReturnType<typeof toJob>[]) => [...new Map(jobs.map((j) => [j.id, j])).values()];
+
+describe('BoardIndex', () => {
+	it('answers every search, filter, sort and page as filtering and sorting every job would', () => {
+		fc.assert(
+			fc.property(fc.array(job, { maxLength: 60 }), queryOf, (made, query) => {
+				const jobs = unique(made.map((j) => toJob(j, '1')));
+				const words = query.q.split(' ').filter(Boolean);
+				const index = new BoardIndex(jobs);
+				if (!query.q && !query.age) return; // the board asks the index only with a search or an age filter
+				expect(index.select(query, words, NOW_US)).toEqual(plainly(jobs, query, words));
+			}),
+			{ numRuns: 300 }
+		);
+	});
+
+	it('brought up to date change by change, it answers as one built from the final jobs', () => {
+		fc.assert(
+			fc.property(
+				fc.array(job, { minLength: 1, maxLength: 40 }),
+				fc.array(fc.record({ at: fc.nat(), replace: job, remove: fc.boolean() }), { maxLength: 30 }),
+				queryOf,
+				(made, changes, query) => {
+					let jobs = unique(made.map((j) => toJob(j, '1')));
+					const index = new BoardIndex(jobs);
+					changes.forEach((change, n) => {
+						const target = jobs[change.at % jobs.length];
+						if (!target) return;
+						if (change.remove) {
+							jobs = jobs.filter((j) => j !== target);
+							index.apply([], [target.id]);
+						} else {
+							const next = toJob({ ...change.replace, id: target.id, number: target.number }, String(n + 2));
+							jobs = jobs.map((j) => (j === target ? next : j));
+							index.apply([next], []);
+						}
+					});
+					if (!query.q && !query.age) query.q = 'no';
+					const words = query.q.split(' ').filter(Boolean);
+					expect(index.size).toBe(jobs.length);
+					expect(index.select(query, words, NOW_US)).toEqual(new BoardIndex(jobs).select(query, words, NOW_US));
+					expect(index.select(query, words, NOW_US)).toEqual(plainly(jobs, query, words));
+				}
+			),
+			{ numRuns: 200 }
+		);
+	});
+
+	it('skips a job already held as written by the same transaction, and takes many changes at once', () => {
+		const jobs = Array.from({ length: 100 }, (_, i) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: 'checked_in', tech: null, customer: `C${i}`, unit: 'U', promised: null, openedDays: i % 30, changedDays: 1, words: ['orla'] }, '5')
+		);
+		const index = new BoardIndex(jobs);
+		expect(index.apply([jobs[3]], [])).toBe(false);
+		const version = index.version;
+		const moved = jobs.map((j) => ({ ...j, status: 'ready' as const, rank: statusRank('ready'), xid: '6' }));
+		expect(index.apply(moved, [])).toBe(true); // more than a few: every order is sorted again
+		expect(index.version).toBe(version + 1);
+		const query: BoardQuery = { q: 'orla', status: ['ready'], tech: '', age: '', sort: 'customer', dir: 'asc', page: 1, per: 25 };
+		expect(index.select(query, ['orla'], NOW_US)).toEqual(plainly(moved, query, ['orla']));
+	});
+
+	it('leaves to the SQL a search that would look at too many jobs', () => {
+		const jobs = Array.from({ length: 40_001 }, (_, i) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: 'checked_in', tech: null, customer: 'C', unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: ['output'] }, '1')
+		);
+		const index = new BoardIndex(jobs);
+		const query: BoardQuery = { q: 'output', status: [], tech: '', age: '', sort: 'customer', dir: 'asc', page: 1, per: 25 };
+		expect(index.select(query, ['output'], NOW_US)).toBeNull();
+		expect(index.select({ ...query, q: 'no' }, ['no'], NOW_US)).toBeNull();
+		expect(index.select({ ...query, q: '#40001' }, ['#40001'], NOW_US)?.total).toBe(1);
+	});
+});

@@ -1,0 +1,385 @@
+import { JOB_STATUSES, type JobStatus } from '../domain';
+import type { BoardQuery, SortKey } from '../board-query';
+
+/**
+ * The job board's search and age filters over one shop's jobs, in memory: the words of every job's
+ * search text point to its jobs, and each sort key keeps the jobs in its order. A search then costs
+ * in proportion to the jobs it matches, wherever they fall in the order asked for, and counts them
+ * all exactly. PostgreSQL stays the record: this is built from it, brought up to date from it on
+ * every request (see `board.ts`), and only chooses which job ids make the page; the rows shown are
+ * read from PostgreSQL.
+ *
+ * The answers are those of the SQL the board runs without it: a job matches when its search text
+ * (lower case, as stored) contains every word of the search as typed, lowered; the orders are
+ * PostgreSQL's for a database that sorts text by code point (C or C.UTF-8, checked before one is
+ * built), nulls last, then id. A test compares the two on the same jobs.
+ */
+
+/** One job as read from PostgreSQL (see FIELDS). Times are microseconds since 1970 as text. */
+export interface IndexedJob {
+	id: string;
+	number: number;
+	status: JobStatus;
+	rank: number;
+	tech: string | null;
+	customer: string | null;
+	unit: string | null;
+	techName: string | null;
+	promised: string | null;
+	opened: string;
+	changed: string;
+	text: string;
+	xid: string | null;
+}
+
+/** The columns of `IndexedJob`, read from `jobs j`. */
+export const FIELDS = `j.id, j.number, j.status, j.status_rank AS rank, j.technician_id AS tech, j.customer_name AS customer,
+	j.unit_label AS unit, j.technician_name AS "techName", to_char(j.promised_on, 'YYYY-MM-DD') AS promised,
+	(extract(epoch FROM j.created_at) * 1000000)::bigint::text AS opened,
+	(extract(epoch FROM j.status_changed_at) * 1000000)::bigint::text AS changed,
+	j.search_text AS text, j.written_by::text AS xid`;
+
+/** Database collations whose text order is code point order, the order this index keeps. */
+export const CODE_POINT_COLLATIONS = ['C', 'POSIX', 'C.UTF-8', 'C.utf8', 'ucs_basic'];
+
+const SORTED: readonly SortKey[] = ['number', 'customer', 'unit', 'status', 'technician', 'promised', 'changed', 'opened'];
+const STATUS = new Map(JOB_STATUSES.map((s, i) => [s, i]));
+const DAY_US = 86_400_000_000;
+/** Places in an order per block of the page scan; up to FEW selected jobs are sorted instead of scanned for. */
+const BLOCK = 256;
+const FEW = 1024;
+/** The most jobs a search may have to look at (see `select`). */
+const WORK_LIMIT = 40_000;
+/** More changed jobs than this at once re-sort every order instead of moving jobs one by one. */
+const RESORT_ABOVE = 64;
+
+/**
+ * JavaScript compares strings by UTF-16 code unit, which differs from code point order only between
+ * a surrogate (an astral character) and U+E000–U+FFFF. Such strings are kept with those two ranges
+ * swapped so that `<` gives code point order; others are kept as they are.
+ */
+export function codePointKey(value: string | null): string | null {
+	if (value === null || !/[\ud800-\uffff]/.test(value)) return value;
+	let out = '';
+	for (let i = 0; i < value.length; i++) {
+		const c = value.charCodeAt(i);
+		out += String.fromCharCode(c < 0xd800 ? c : c >= 0xe000 ? c - 0x800 : c + 0x2000);
+	}
+	return out;
+}
+
+const words = (text: string) => [...new Set(text.split(/\s+/).filter(Boolean))];
+
+export class BoardIndex {
+	/** Bumped on every change, so a page chosen before a change can tell it is out of date. */
+	version = 0;
+	/** Live jobs. */
+	size = 0;
+
+	private slotOf = new Map<string, number>();
+	private ids: string[] = [];
+	private xids: (string | null)[] = [];
+	private texts: string[] = [];
+	private techs: (string | null)[] = [];
+	private keys: Record<SortKey, (string | number | null)[]> = Object.fromEntries(SORTED.map((k) => [k, []])) as never;
+	private orders: Record<SortKey, number[]> = Object.fromEntries(SORTED.map((k) => [k, []])) as never;
+	// Per slot, in typed arrays so a scan over every job stays a tight loop.
+	private alive = new Uint8Array(0);
+	private status = new Uint8Array(0);
+	private opened = new Float64Array(0);
+	private changed = new Float64Array(0);
+	private ranks: Record<SortKey, Int32Array> = Object.fromEntries(SORTED.map((k) => [k, new Int32Array(0)])) as never;
+	/** Word → the live jobs whose search text holds it; three letters → the words that hold them. */
+	private postings = new Map<string, number[]>();
+	private byTrigram = new Map<string, string[]>();
+
+	constructor(jobs: IndexedJob[] = []) {
+		for (const job of jobs) this.put(job);
+		for (const key of SORTED) this.resort(key);
+	}
+
+	/** The same as `new BoardIndex(jobs)`, letting other requests run every few thousand jobs and between orders. */
+	static async load(jobs: IndexedJob[]): Promise<BoardIndex> {
+		const index = new BoardIndex();
+		const pause = () => new Promise((resolve) => setImmediate(resolve));
+		for (let i = 0; i < jobs.length; i += 5000) {
+			for (const job of jobs.slice(i, i + 5000)) index.put(job);
+			await pause();
+		}
+		for (const key of SORTED) {
+			index.resort(key);
+			await pause();
+		}
+		return index;
+	}
+
+	/**
+	 * Applies what changed since the last call: new and rewritten jobs (a job whose recorded writer
+	 * is the one already held is skipped) and deleted ones. Returns whether anything changed.
+	 */
+	apply(changed: IndexedJob[], deleted: string[]): boolean {
+		const moved: number[] = [];
+		for (const id of deleted) {
+			const slot = this.slotOf.get(id);
+			if (slot === undefined || !this.alive[slot]) continue;
+			this.unlink(slot);
+			this.alive[slot] = 0;
+			this.size--;
+			moved.push(slot);
+		}
+		const fresh = changed.filter((job) => {
+			const slot = this.slotOf.get(job.id);
+			return slot === undefined || !this.alive[slot] || this.xids[slot] !== job.xid;
+		});
+		if (!moved.length && !fresh.length) return false;
+		const many = moved.length + fresh.length > RESORT_ABOVE;
+		if (!many) for (const slot of moved) this.takeOut(slot);
+		for (const job of fresh) {
+			const known = this.slotOf.get(job.id);
+			if (!many && known !== undefined && this.alive[known]) this.takeOut(known);
+			const slot = this.put(job);
+			if (!many) for (const key of SORTED) this.insertInOrder(key, slot);
+		}
+		for (const key of SORTED) {
+			if (many) this.resort(key);
+			else this.rerank(key);
+		}
+		this.version++;
+		return true;
+	}
+
+	/**
+	 * Counts per status of every job matching the search and age filters, the total under the status
+	 * filter, and the page's job ids. Null when that means looking at more than WORK_LIMIT jobs: so
+	 * many matches lie close together in any order, where the SQL's walk along the sort index finds
+	 * a page soonest (the index is for matches few or far along the order, where the walk is slow).
+	 */
+	select(query: BoardQuery, searchWords: string[], nowUs: number): { counts: Record<JobStatus, number>; total: number; ids: string[] } | null {
+		const perStatus = new Int32Array(JOB_STATUSES.length);
+		const wanted = new Uint8Array(JOB_STATUSES.length).fill(query.status.length ? 0 : 1);
+		for (const s of query.status) wanted[STATUS.get(s)!] = 1;
+		const since = query.age && query.age !== 'stale' ? nowUs - Number(query.age) * DAY_US : -Infinity;
+		const stale = query.age === 'stale';
+		const staleBefore = nowUs - 14 * DAY_US;
+		const pickedUp = STATUS.get('picked_up')!;
+		const tech = query.tech;
+		const long = searchWords.filter((w) => w.length >= 3);
+		const short = searchWords.filter((w) => w.length < 3);
+		const { alive, status, opened, changed, texts, techs } = this;
+		const n = this.ids.length;
+		const rank = this.ranks[query.sort];
+		// Where each selected job stands in the order asked for, and which blocks of BLOCK places hold
+		// one: the page is found by scanning these from the nearer end. A few selected jobs are also
+		// listed, and then sorted instead.
+		const standing = new Uint8Array(n);
+		const blocks = new Uint8Array(Math.ceil(n / BLOCK));
+		const few: number[] = [];
+		let total = 0;
+
+		const keep = (slot: number) => {
+			if (!alive[slot] || opened[slot] < since) return;
+			if (stale && !(changed[slot] < staleBefore && status[slot] !== pickedUp)) return;
+			if (tech && (tech === 'none' ? techs[slot] !== null : techs[slot] !== tech)) return;
+			for (let w = 0; w < short.length; w++) if (!texts[slot].includes(short[w])) return;
+			perStatus[status[slot]]++;
+			if (wanted[status[slot]]) {
+				const place = rank[slot];
+				standing[place] = 1;
+				blocks[(place / BLOCK) | 0] = 1;
+				if (++total <= FEW) few.push(place);
+			}
+		};
+		const lists = long.map((w) => this.wordsContaining(w).map((token) => this.postings.get(token)!));
+		const window = !lists.length && !short.length && (since > -Infinity || stale) ? this.ageWindow(since, stale, staleBefore) : null;
+		const work = lists.length ? lists.flat().reduce((sum, jobs) => sum + jobs.length, 0) : (window?.length ?? n);
+		if (work > WORK_LIMIT) return null;
+		if (lists.length === 1 && lists[0].length === 1) {
+			// One word found as one word of the index: its jobs, each once.
+			for (const slot of lists[0][0]) keep(slot);
+		} else if (lists.length) {
+			// A job holds word i when it held words 0…i-1 (hit = i) and one of its words contains word i.
+			const hit = new Uint8Array(n);
+			for (let i = 0; i < lists.length; i++) {
+				for (const jobs of lists[i]) {
+					for (let j = 0; j < jobs.length; j++) if (hit[jobs[j]] === i) hit[jobs[j]] = i + 1;
+				}
+			}
+			for (const jobs of lists[lists.length - 1]) {
+				for (let j = 0; j < jobs.length; j++) {
+					if (hit[jobs[j]] !== lists.length) continue;
+					hit[jobs[j]] = 0;
+					keep(jobs[j]);
+				}
+			}
+		} else if (window) {
+			for (const slot of window) keep(slot);
+		} else {
+			for (let slot = 0; slot < n; slot++) keep(slot);
+		}
+		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, perStatus[i]])) as Record<JobStatus, number>;
+
+		// The page: from the nearer end of the selection, skip to it and take it.
+		const offset = (query.page - 1) * query.per;
+		const take = Math.max(0, Math.min(query.per, total - offset));
+		const fromEnd = offset > total / 2;
+		const forward = (query.dir === 'asc') !== fromEnd;
+		let skip = fromEnd ? total - offset - take : offset;
+		const order = this.orders[query.sort];
+		const page: number[] = [];
+		if (total <= FEW) {
+			few.sort((a, b) => (forward ? a - b : b - a));
+			for (const place of few.slice(skip, skip + take)) page.push(order[place]);
+		} else {
+			for (let b = forward ? 0 : blocks.length - 1; page.length < take && b >= 0 && b < blocks.length; b += forward ? 1 : -1) {
+				if (!blocks[b]) continue;
+				const first = b * BLOCK;
+				const last = Math.min(first + BLOCK, n) - 1;
+				for (let i = forward ? first : last; page.length < take && i >= first && i <= last; i += forward ? 1 : -1) {
+					if (!standing[i]) continue;
+					if (skip > 0) skip--;
+					else page.push(order[i]);
+				}
+			}
+		}
+		if (fromEnd) page.reverse();
+		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/** Jobs opened since `since`, or (stale) left in their status since before `staleBefore`: one end of the order by opening or by change. */
+	private ageWindow(since: number, stale: boolean, staleBefore: number): number[] {
+		const by = stale ? this.orders.changed : this.orders.opened;
+		const times = stale ? this.changed : this.opened;
+		const bound = stale ? staleBefore : since;
+		let lo = 0;
+		let hi = by.length;
+		while (lo < hi) {
+			const mid = (lo + hi) >>> 1;
+			if (times[by[mid]] < bound) lo = mid + 1;
+			else hi = mid;
+		}
+		return stale ? by.slice(0, lo) : by.slice(lo);
+	}
+
+	/** The live words of the index that contain `word` (three letters or more). */
+	private wordsContaining(word: string): string[] {
+		let rarest: string[] | undefined;
+		for (let i = 0; i + 3 <= word.length; i++) {
+			const list = this.byTrigram.get(word.slice(i, i + 3));
+			if (!list) return [];
+			if (!rarest || list.length < rarest.length) rarest = list;
+		}
+		return rarest!.filter((token) => token.includes(word) && this.postings.get(token)!.length > 0);
+	}
+
+	/** Stores a job's values in its slot (a new one for a new job) and files it under its words; orders are left to the caller. */
+	private put(job: IndexedJob): number {
+		let slot = this.slotOf.get(job.id);
+		if (slot === undefined) {
+			slot = this.ids.length;
+			this.slotOf.set(job.id, slot);
+			this.ids.push(job.id);
+			if (slot >= this.alive.length) this.grow(Math.max(1024, slot * 2));
+		} else if (this.alive[slot]) {
+			this.unlink(slot);
+			this.size--;
+		}
+		this.alive[slot] = 1;
+		this.size++;
+		this.xids[slot] = job.xid;
+		this.texts[slot] = job.text;
+		this.status[slot] = STATUS.get(job.status)!;
+		this.techs[slot] = job.tech;
+		this.opened[slot] = Number(job.opened);
+		this.changed[slot] = Number(job.changed);
+		const keys = this.keys;
+		keys.number[slot] = job.number;
+		keys.customer[slot] = codePointKey(job.customer);
+		keys.unit[slot] = codePointKey(job.unit);
+		keys.status[slot] = job.rank;
+		keys.technician[slot] = codePointKey(job.techName);
+		keys.promised[slot] = job.promised;
+		keys.changed[slot] = this.changed[slot];
+		keys.opened[slot] = this.opened[slot];
+		for (const token of words(job.text)) {
+			let jobs = this.postings.get(token);
+			if (!jobs) {
+				this.postings.set(token, (jobs = []));
+				for (const trigram of new Set(Array.from({ length: Math.max(0, token.length - 2) }, (_, i) => token.slice(i, i + 3)))) {
+					let list = this.byTrigram.get(trigram);
+					if (!list) this.byTrigram.set(trigram, (list = []));
+					list.push(token);
+				}
+			}
+			jobs.push(slot);
+		}
+		return slot;
+	}
+
+	/** Takes a job out from under its words (its values stay until overwritten). */
+	private unlink(slot: number) {
+		for (const token of words(this.texts[slot])) {
+			const jobs = this.postings.get(token)!;
+			jobs.splice(jobs.indexOf(slot), 1);
+		}
+	}
+
+	private grow(capacity: number) {
+		const wider = <T extends Uint8Array | Float64Array | Int32Array>(old: T, make: (n: number) => T) => {
+			const next = make(capacity);
+			next.set(old);
+			return next;
+		};
+		this.alive = wider(this.alive, (n) => new Uint8Array(n));
+		this.status = wider(this.status, (n) => new Uint8Array(n));
+		this.opened = wider(this.opened, (n) => new Float64Array(n));
+		this.changed = wider(this.changed, (n) => new Float64Array(n));
+		for (const key of SORTED) this.ranks[key] = wider(this.ranks[key], (n) => new Int32Array(n));
+	}
+
+	/** PostgreSQL's order for the key: ascending, nulls last, then id (job numbers are unique in a shop). */
+	private compare(key: SortKey, a: number, b: number): number {
+		const x = this.keys[key][a];
+		const y = this.keys[key][b];
+		if (x !== y) {
+			if (x === null) return 1;
+			if (y === null) return -1;
+			return x < y! ? -1 : 1;
+		}
+		return this.ids[a] < this.ids[b] ? -1 : this.ids[a] > this.ids[b] ? 1 : 0;
+	}
+
+	private resort(key: SortKey) {
+		const order: number[] = [];
+		for (let slot = 0; slot < this.ids.length; slot++) if (this.alive[slot]) order.push(slot);
+		this.orders[key] = order.sort((a, b) => this.compare(key, a, b));
+		this.rerank(key);
+	}
+
+	/** Where a job stands, or would stand, in a key's order, by its values as now held. */
+	private position(key: SortKey, slot: number): number {
+		const order = this.orders[key];
+		let lo = 0;
+		let hi = order.length;
+		while (lo < hi) {
+			const mid = (lo + hi) >>> 1;
+			if (this.compare(key, order[mid], slot) < 0) lo = mid + 1;
+			else hi = mid;
+		}
+		return lo;
+	}
+
+	/** Takes a job out of every order (before its values change); ranks are renewed by the caller. */
+	private takeOut(slot: number) {
+		for (const key of SORTED) this.orders[key].splice(this.position(key, slot), 1);
+	}
+
+	private insertInOrder(key: SortKey, slot: number) {
+		this.orders[key].splice(this.position(key, slot), 0, slot);
+	}
+
+	private rerank(key: SortKey) {
+		const order = this.orders[key];
+		const rank = this.ranks[key];
+		for (let i = 0; i < order.length; i++) rank[order[i]] = i;
+	}
+}
