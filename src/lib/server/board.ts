@@ -161,7 +161,7 @@ export async function page(shopId: string, query: BoardQuery, { useIndex = true 
  * read them in. A shop's index is held while the jobs of all held indexes stay under
  * MENDWISE_BOARD_INDEX_JOBS (0 turns the index off); the least recently used go first.
  */
-const INDEX_JOBS = Number(process.env.MENDWISE_BOARD_INDEX_JOBS ?? 500_000);
+const INDEX_JOBS = Number(process.env.MENDWISE_BOARD_INDEX_JOBS ?? 200_000);
 /** A shop with up to this many jobs has its index built while its first search waits (a few hundred ms at most); a bigger one is built beside the SQL answer. */
 const BUILD_WHILE_WAITING = 20_000;
 /** More jobs written at once than this and the index is built again rather than brought up to date. */
@@ -183,11 +183,6 @@ let codePointOrder: Promise<boolean> | undefined;
 interface Snapshot { xmin: string; xmax: string; running: number }
 const SNAPSHOT = `pg_snapshot_xmin(x.s)::text AS xmin, pg_snapshot_xmax(x.s)::text AS xmax,
 	(SELECT count(*)::int FROM pg_snapshot_xip(x.s)) AS running`;
-
-/** Drops every held index (tests; a restore of the database under a running app). */
-export function forgetIndexes() {
-	held.clear();
-}
 
 async function indexFor(shopId: string): Promise<BoardIndex | null> {
 	if (!(INDEX_JOBS > 0)) return null;
@@ -251,10 +246,14 @@ async function indexed(shopId: string, query: BoardQuery, words: string[]): Prom
 		if (!chosen) return null;
 		const [found] = await prepared<Snapshot & { changed: IndexedJob[] | null; deleted: string[] | null; page: BoardRow[] | null }>(
 			// Ordered by writer so that even a plan kept for any values walks the index (a few rows).
+			// A writer past the snapshot's xmax cannot be live: it came with a restore from another
+			// cluster, and the build read that row already.
 			`SELECT ${SNAPSHOT},
 			        (SELECT json_agg(d) FROM (SELECT ${FIELDS} FROM jobs j
-			          WHERE j.shop_id = :shopId AND j.written_by >= :since::xid8 ORDER BY j.written_by LIMIT ${CHANGES_AT_ONCE + 1}) d) AS changed,
-			        (SELECT json_agg(job_id) FROM job_deletions WHERE shop_id = :shopId AND deleted_by >= :since::xid8) AS deleted,
+			          WHERE j.shop_id = :shopId AND j.written_by >= :since::xid8 AND j.written_by < pg_snapshot_xmax(x.s)
+			          ORDER BY j.written_by LIMIT ${CHANGES_AT_ONCE + 1}) d) AS changed,
+			        (SELECT json_agg(job_id) FROM job_deletions
+			          WHERE shop_id = :shopId AND deleted_by >= :since::xid8 AND deleted_by < pg_snapshot_xmax(x.s)) AS deleted,
 			        (SELECT json_agg(p) FROM (SELECT ${COLUMNS} FROM jobs j JOIN units u ON u.id = j.unit_id
 			          WHERE j.shop_id = :shopId AND j.id = ANY(:ids::uuid[])) p) AS page
 			   FROM (SELECT pg_current_snapshot() AS s) x`,
