@@ -84,7 +84,7 @@ export interface BoardPage {
 	rows: BoardRow[];
 	/** Jobs matching every filter; null when more than the board counts (see `exact`). */
 	total: number | null;
-	/** False when a search or age filter matched more jobs than are counted: `counts` then cover only the first ones found. */
+	/** False when a search or age filter answered in SQL (not by the board index) matched more jobs than are counted: `counts` then cover only the first ones found. */
 	exact: boolean;
 	counts: Record<JobStatus, number>;
 	query: BoardQuery;
