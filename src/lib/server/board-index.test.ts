@@ -154,6 +154,25 @@ describe('BoardIndex', () => {
 		expect(index.select(query, ['orla'], NOW_US)).toEqual(plainly(moved, query, ['orla']));
 	});
 
+	it('finds words held by thousands of jobs through their bits, as they change and the index grows', () => {
+		const make = (i: number, words: string[], xid = '1') =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: JOB_STATUSES[i % 8], tech: null, customer: `C${i % 97}`, unit: 'U', promised: null, openedDays: i % 30, changedDays: 1, words }, xid);
+		const wordsOf = (i: number) => [...(i % 3 ? ['output'] : []), ...(i % 50 === 0 ? ['kestrel'] : []), ...(i % 7 === 0 ? ['surge'] : [])];
+		let jobs = Array.from({ length: 3300 }, (_, i) => make(i, wordsOf(i)));
+		const index = new BoardIndex(jobs);
+		const check = (q: string) => {
+			const query: BoardQuery = { q, status: [], tech: '', age: '', sort: 'customer', dir: 'asc', page: 2, per: 10 };
+			expect(index.select(query, q.split(' '), NOW_US)).toEqual(plainly(jobs, query, q.split(' ')));
+		};
+		for (const q of ['kestrel output', 'output kestrel surge', 'surge output', 'output']) check(q);
+		// 'output' leaves some jobs, new jobs bring it past the first capacity, and the bits follow.
+		const changed = jobs.slice(0, 600).map((j, i) => make(i, i % 2 ? [] : wordsOf(i), '2'));
+		const added = Array.from({ length: 1500 }, (_, k) => make(3300 + k, wordsOf(3300 + k), '3'));
+		index.apply([...changed, ...added], []);
+		jobs = [...changed, ...jobs.slice(600), ...added];
+		for (const q of ['kestrel output', 'output kestrel surge', 'surge output', 'output']) check(q);
+	});
+
 	it('leaves to the SQL a search that would look at too many jobs', () => {
 		const jobs = Array.from({ length: 40_001 }, (_, i) =>
 			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: 'checked_in', tech: null, customer: 'C', unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: ['output'] }, '1')

@@ -50,6 +50,8 @@ const BLOCK = 256;
 const FEW = 1024;
 /** The most jobs a search may have to look at (see `select`). */
 const WORK_LIMIT = 40_000;
+/** Words held by this many jobs or more are also kept as one bit per job. */
+const FREQUENT = 2048;
 /** More changed jobs than this at once re-sort every order instead of moving jobs one by one. */
 const RESORT_ABOVE = 64;
 
@@ -92,6 +94,8 @@ export class BoardIndex {
 	/** Word → the live jobs whose search text holds it; three letters → the words that hold them. */
 	private postings = new Map<string, number[]>();
 	private byTrigram = new Map<string, string[]>();
+	/** For words held by at least FREQUENT jobs, the same as one bit per slot: asking whether a job holds one is then cheap. */
+	private frequent = new Map<string, Uint32Array>();
 
 	constructor(jobs: IndexedJob[] = []) {
 		for (const job of jobs) this.put(job);
@@ -176,45 +180,63 @@ export class BoardIndex {
 		const few: number[] = [];
 		let total = 0;
 
+		const byAge = since > -Infinity;
+		// For a live job (the lists and orders hold only those): count it, and place it when selected.
 		const keep = (slot: number) => {
-			if (!alive[slot] || opened[slot] < since) return;
+			if (byAge && opened[slot] < since) return;
 			if (stale && !(changed[slot] < staleBefore && status[slot] !== pickedUp)) return;
 			if (tech && (tech === 'none' ? techs[slot] !== null : techs[slot] !== tech)) return;
 			for (let w = 0; w < short.length; w++) if (!texts[slot].includes(short[w])) return;
-			perStatus[status[slot]]++;
-			if (wanted[status[slot]]) {
+			const state = status[slot];
+			perStatus[state]++;
+			if (wanted[state]) {
 				const place = rank[slot];
 				standing[place] = 1;
 				blocks[(place / BLOCK) | 0] = 1;
 				if (++total <= FEW) few.push(place);
 			}
 		};
-		const lists = long.map((w) => this.wordsContaining(w).map((token) => this.postings.get(token)!));
-		const window = !lists.length && !short.length && (since > -Infinity || stale) ? this.ageWindow(since, stale, staleBefore) : null;
-		const work = lists.length ? lists.flat().reduce((sum, jobs) => sum + jobs.length, 0) : (window?.length ?? n);
+		// Each word as the index's words containing it, the rarest first.
+		const found = long
+			.map((word) => {
+				const tokens = this.wordsContaining(word);
+				return { word, tokens, size: tokens.reduce((sum, token) => sum + this.postings.get(token)!.length, 0) };
+			})
+			.sort((a, b) => a.size - b.size);
+		const window = !found.length && !short.length && (byAge || stale) ? this.ageWindow(since, stale, staleBefore) : null;
+		const work = found.length ? found.reduce((sum, f) => sum + Math.min(f.size, found[0].size), 0) : (window?.length ?? n);
 		if (work > WORK_LIMIT) return null;
-		if (lists.length === 1 && lists[0].length === 1) {
-			// One word found as one word of the index: its jobs, each once.
-			for (const slot of lists[0][0]) keep(slot);
-		} else if (lists.length) {
-			// A job holds word i when it held words 0…i-1 (hit = i) and one of its words contains word i.
-			const hit = new Uint8Array(n);
-			for (let i = 0; i < lists.length; i++) {
-				for (const jobs of lists[i]) {
-					for (let j = 0; j < jobs.length; j++) if (hit[jobs[j]] === i) hit[jobs[j]] = i + 1;
+		if (found.length) {
+			// The rarest word's jobs, then kept only where each other word is found too: by its bits
+			// when it is a common word, by walking its jobs when they are few, otherwise by reading
+			// each remaining job's text.
+			const mark = new Uint8Array(n);
+			let candidates: number[] = [];
+			for (const token of found[0].tokens) {
+				for (const slot of this.postings.get(token)!) {
+					if (mark[slot]) continue;
+					mark[slot] = 1;
+					candidates.push(slot);
 				}
 			}
-			for (const jobs of lists[lists.length - 1]) {
-				for (let j = 0; j < jobs.length; j++) {
-					if (hit[jobs[j]] !== lists.length) continue;
-					hit[jobs[j]] = 0;
-					keep(jobs[j]);
+			for (let i = 1; i < found.length && candidates.length; i++) {
+				const { word, tokens, size } = found[i];
+				const stamp = i + 1;
+				const sets = tokens.map((token) => this.frequent.get(token));
+				if (sets.every(Boolean)) {
+					candidates = candidates.filter((slot) => sets.some((bits) => (bits![slot >>> 5] >>> (slot & 31)) & 1) && (mark[slot] = stamp));
+				} else if (size <= candidates.length * 4) {
+					for (const token of tokens) for (const slot of this.postings.get(token)!) if (mark[slot] === stamp - 1) mark[slot] = stamp;
+					candidates = candidates.filter((slot) => mark[slot] === stamp);
+				} else {
+					candidates = candidates.filter((slot) => texts[slot].includes(word) && (mark[slot] = stamp));
 				}
 			}
+			for (const slot of candidates) keep(slot);
 		} else if (window) {
 			for (const slot of window) keep(slot);
 		} else {
-			for (let slot = 0; slot < n; slot++) keep(slot);
+			for (let slot = 0; slot < n; slot++) if (alive[slot]) keep(slot);
 		}
 		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, perStatus[i]])) as Record<JobStatus, number>;
 
@@ -311,6 +333,13 @@ export class BoardIndex {
 				}
 			}
 			jobs.push(slot);
+			const bits = this.frequent.get(token);
+			if (bits) bits[slot >>> 5] |= 1 << (slot & 31);
+			else if (jobs.length >= FREQUENT) {
+				const made = new Uint32Array(this.alive.length >>> 5);
+				for (const held of jobs) made[held >>> 5] |= 1 << (held & 31);
+				this.frequent.set(token, made);
+			}
 		}
 		return slot;
 	}
@@ -320,6 +349,8 @@ export class BoardIndex {
 		for (const token of words(this.texts[slot])) {
 			const jobs = this.postings.get(token)!;
 			jobs.splice(jobs.indexOf(slot), 1);
+			const bits = this.frequent.get(token);
+			if (bits) bits[slot >>> 5] &= ~(1 << (slot & 31));
 		}
 	}
 
@@ -334,6 +365,11 @@ export class BoardIndex {
 		this.opened = wider(this.opened, (n) => new Float64Array(n));
 		this.changed = wider(this.changed, (n) => new Float64Array(n));
 		for (const key of SORTED) this.ranks[key] = wider(this.ranks[key], (n) => new Int32Array(n));
+		for (const [token, bits] of this.frequent) {
+			const next = new Uint32Array(capacity >>> 5);
+			next.set(bits);
+			this.frequent.set(token, next);
+		}
 	}
 
 	/** PostgreSQL's order for the key: ascending, nulls last, then id (job numbers are unique in a shop). */

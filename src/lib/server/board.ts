@@ -176,7 +176,11 @@ interface Held {
 	xmax?: bigint;
 	running?: number;
 	usedAt: number;
+	/** No index is tried for the shop before this time (ms): one could not be built, or the shop has too many jobs. */
+	notBefore?: number;
 }
+/** How long a shop without an index waits before one is tried again. */
+const RETRY_AFTER_MS = 60_000;
 const held = new Map<string, Held>();
 let codePointOrder: Promise<boolean> | undefined;
 
@@ -190,10 +194,13 @@ async function indexFor(shopId: string): Promise<BoardIndex | null> {
 	if (!entry) held.set(shopId, (entry = { usedAt: Date.now() }));
 	entry.usedAt = Date.now();
 	if (entry.index) return entry.index;
-	if (!entry.building) {
+	if (!entry.building && !(Date.now() < (entry.notBefore ?? 0))) {
 		const jobs = Object.values(await statusCounts(shopId)).reduce((sum, n) => sum + n, 0);
 		if (entry.building) return null; // another request started it meanwhile
-		if (jobs > INDEX_JOBS) return null;
+		if (jobs > INDEX_JOBS) {
+			entry.notBefore = Date.now() + RETRY_AFTER_MS;
+			return null;
+		}
 		const building = (entry.building = build(shopId, entry).finally(() => {
 			if (entry.building === building) entry.building = undefined;
 		}));
@@ -203,11 +210,18 @@ async function indexFor(shopId: string): Promise<BoardIndex | null> {
 }
 
 async function build(shopId: string, entry: Held): Promise<void> {
-	codePointOrder ??= prepared<{ collation: string }>('SELECT datcollate AS collation FROM pg_database WHERE datname = current_database()', {}).then(
-		([row]) => CODE_POINT_COLLATIONS.includes(row.collation)
-	);
-	if (!(await codePointOrder)) return; // the index keeps code point order; the database sorts otherwise
 	try {
+		codePointOrder ??= prepared<{ collation: string }>('SELECT datcollate AS collation FROM pg_database WHERE datname = current_database()', {}).then(
+			([row]) => CODE_POINT_COLLATIONS.includes(row.collation),
+			(error) => {
+				codePointOrder = undefined;
+				throw error;
+			}
+		);
+		if (!(await codePointOrder)) {
+			entry.notBefore = Number.POSITIVE_INFINITY; // the index keeps code point order; the database sorts otherwise
+			return;
+		}
 		const [found] = await prepared<Snapshot & { jobs: IndexedJob[] | null }>(
 			`SELECT ${SNAPSHOT}, (SELECT json_agg(j) FROM (SELECT ${FIELDS} FROM jobs j WHERE j.shop_id = :shopId) j) AS jobs
 			   FROM (SELECT pg_current_snapshot() AS s) x`,
@@ -226,8 +240,8 @@ async function build(shopId: string, entry: Held): Promise<void> {
 			held.delete(shop);
 		}
 	} catch (error) {
-		held.delete(shopId);
-		console.error('board index: could not be built; the board answers in SQL', error);
+		entry.notBefore = Date.now() + RETRY_AFTER_MS;
+		console.error('board index: could not be built; the board answers in SQL for a minute', error);
 	}
 }
 
