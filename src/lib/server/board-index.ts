@@ -2,10 +2,10 @@ import { JOB_STATUSES, type JobStatus } from '../domain';
 import type { BoardQuery, SortKey } from '../board-query';
 
 /**
- * The job board's search and age filters over one shop's jobs, in memory: the words of every job's
- * search text point to its jobs, and each sort key keeps the jobs in its order. A search then costs
- * in proportion to the jobs it matches, wherever they fall in the order asked for, and counts them
- * all exactly. PostgreSQL stays the record: this is built from it, brought up to date from it on
+ * The job board's search and age filters, and its later pages, over one shop's jobs, in memory:
+ * the words of every job's search text point to its jobs, and each sort key keeps the jobs in its
+ * order. A search then costs in proportion to the jobs it matches, wherever they fall in the order
+ * asked for, and counts them all exactly; a page deep in the whole list costs what the first does. PostgreSQL stays the record: this is built from it, brought up to date from it on
  * every request (see `board.ts`), and only chooses which job ids make the page; the rows shown are
  * read from PostgreSQL.
  *
@@ -91,6 +91,8 @@ export class BoardIndex {
 	private opened = new Float64Array(0);
 	private changed = new Float64Array(0);
 	private ranks: Record<SortKey, Int32Array> = Object.fromEntries(SORTED.map((k) => [k, new Int32Array(0)])) as never;
+	/** Live jobs per status. */
+	private totals = new Int32Array(JOB_STATUSES.length);
 	/** Word → the live jobs whose search text holds it; three letters → the words that hold them. */
 	private postings = new Map<string, number[]>();
 	private byTrigram = new Map<string, string[]>();
@@ -169,6 +171,7 @@ export class BoardIndex {
 		const tech = query.tech;
 		const long = searchWords.filter((w) => w.length >= 3);
 		const short = searchWords.filter((w) => w.length < 3);
+		if (!searchWords.length && !query.age && !tech) return this.pageOfAll(query, wanted);
 		const { alive, status, opened, changed, texts, techs } = this;
 		const n = this.ids.length;
 		const rank = this.ranks[query.sort];
@@ -267,6 +270,36 @@ export class BoardIndex {
 		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
 	}
 
+	/**
+	 * A page of all the shop's jobs, or of those in some statuses: any page costs what the first
+	 * does, read along the order from its nearer end (with statuses chosen, as far as the page).
+	 */
+	private pageOfAll(query: BoardQuery, wanted: Uint8Array) {
+		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, this.totals[i]])) as Record<JobStatus, number>;
+		const total = this.totals.reduce((sum, n, i) => sum + (wanted[i] ? n : 0), 0);
+		const offset = (query.page - 1) * query.per;
+		const take = Math.max(0, Math.min(query.per, total - offset));
+		const fromEnd = offset > total / 2;
+		const forward = (query.dir === 'asc') !== fromEnd;
+		let skip = fromEnd ? total - offset - take : offset;
+		const order = this.orders[query.sort];
+		const page: number[] = [];
+		if (!query.status.length) {
+			const first = forward ? skip : order.length - skip - take;
+			page.push(...order.slice(first, first + take));
+			if (!forward) page.reverse();
+		} else {
+			if (skip + take > WORK_LIMIT) return null;
+			for (let i = forward ? 0 : order.length - 1; page.length < take && i >= 0 && i < order.length; i += forward ? 1 : -1) {
+				if (!wanted[this.status[order[i]]]) continue;
+				if (skip > 0) skip--;
+				else page.push(order[i]);
+			}
+		}
+		if (fromEnd) page.reverse();
+		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
 	/** Jobs opened since `since`, or (stale) left in their status since before `staleBefore`: one end of the order by opening or by change. */
 	private ageWindow(since: number, stale: boolean, staleBefore: number): number[] {
 		const by = stale ? this.orders.changed : this.orders.opened;
@@ -310,6 +343,7 @@ export class BoardIndex {
 		this.xids[slot] = job.xid;
 		this.texts[slot] = job.text;
 		this.status[slot] = STATUS.get(job.status)!;
+		this.totals[this.status[slot]]++;
 		this.techs[slot] = job.tech;
 		this.opened[slot] = Number(job.opened);
 		this.changed[slot] = Number(job.changed);
@@ -344,8 +378,9 @@ export class BoardIndex {
 		return slot;
 	}
 
-	/** Takes a job out from under its words (its values stay until overwritten). */
+	/** Takes a job out from under its words and its status's count (its values stay until overwritten). */
 	private unlink(slot: number) {
+		this.totals[this.status[slot]]--;
 		for (const token of words(this.texts[slot])) {
 			const jobs = this.postings.get(token)!;
 			jobs.splice(jobs.indexOf(slot), 1);

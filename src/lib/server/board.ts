@@ -105,6 +105,12 @@ export async function page(shopId: string, query: BoardQuery, { useIndex = true 
 		return answer(query, selected.page, selected.matched <= COUNT_LIMIT ? selected.matched : null, false, counts);
 	}
 
+	// A later page of all jobs, or of some statuses, is read along the index's order at the cost of
+	// the first; the SQL below skips index entries to reach it.
+	if (offset > 0 && !query.tech && useIndex) {
+		const fromIndex = await indexed(shopId, query, words);
+		if (fromIndex) return fromIndex;
+	}
 	values.techKey = query.tech === 'none' ? NO_TECHNICIAN : query.tech;
 	const countsOf = countsSql(Boolean(query.tech));
 	if (offset === 0) {
@@ -154,8 +160,8 @@ export async function page(shopId: string, query: BoardQuery, { useIndex = true 
 }
 
 /*
- * The board index (`board-index.ts`) answers searches and age filters in memory, one per shop,
- * built from PostgreSQL on the shop's first search and brought up to date on every request: the
+ * The board index (`board-index.ts`) answers searches, age filters and later pages in memory, one
+ * per shop, built from PostgreSQL on the shop's first such request and brought up to date on every request: the
  * statement that reads the page's rows also reads every job written (and every deletion) since the
  * oldest transaction that was still running when the index last caught up, with the snapshot it
  * read them in. A shop's index is held while the jobs of all held indexes stay under
