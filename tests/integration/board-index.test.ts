@@ -150,6 +150,22 @@ describe('the board index', () => {
 		expect(many.total).toBe(counted.reduce((sum, c) => sum + c.n, 0));
 	});
 
+	it('after more than 2,000 jobs written at once it answers in SQL rather than from an index that has not caught up', async () => {
+		const bulk = await createShop('Board index bulk');
+		const { unit, customer } = await createJob(bulk, { customerName: 'Bulk Owner', serial: 'BULK-0' });
+		const search = query({ q: 'crate', sort: 'number', dir: 'asc' });
+		expect((await page(bulk.id, search)).total).toBe(0); // the index is built and answers
+		await db().query(
+			`INSERT INTO jobs (shop_id, number, unit_id, customer_id, complaint, status, search_text, customer_name, unit_label)
+			 SELECT :shop, 5000 + i, :unit, :customer, 'Crate lot', 'checked_in', 'crate lot ' || i, 'Crate Lot', 'Crate lot'
+			   FROM generate_series(1, 2100) AS i`,
+			{ replacements: { shop: bulk.id, unit: unit.id, customer: customer.id } }
+		);
+		const answered = await page(bulk.id, search);
+		expect(answered).toMatchObject({ total: null, exact: false }); // the SQL's count limit: not the index
+		expect(answered.rows.map((r) => r.number)).toEqual(Array.from({ length: 25 }, (_, i) => 5001 + i));
+	});
+
 	it("keeps each shop's jobs to itself", async () => {
 		const mine = await page(shop.id, query({ q: 'linnea', per: 100 }));
 		const theirs = await page(other.id, query({ q: 'linnea', per: 100 }));

@@ -170,7 +170,7 @@ export async function page(shopId: string, query: BoardQuery, { useIndex = true 
 const INDEX_JOBS = Number(process.env.MENDWISE_BOARD_INDEX_JOBS ?? 200_000);
 /** A shop with up to this many jobs has its index built while its first search waits (a few hundred ms at most); a bigger one is built beside the SQL answer. */
 const BUILD_WHILE_WAITING = 20_000;
-/** More jobs written at once than this and the index is built again rather than brought up to date. */
+/** More jobs written at once than this and the index is dropped, to be built afresh after RETRY_AFTER_MS. */
 const CHANGES_AT_ONCE = 2000;
 
 interface Held {
@@ -252,7 +252,7 @@ async function build(shopId: string, entry: Held): Promise<void> {
 }
 
 /**
- * A search or age filter answered from the shop's index: the page's ids are chosen in memory, then
+ * A search, age filter or later page answered from the shop's index: the page's ids are chosen in memory, then
  * one statement reads their rows together with whatever changed since the index last caught up.
  * If something had changed, the page is chosen again. Null when no index is held (answer in SQL).
  */
@@ -285,7 +285,9 @@ async function indexed(shopId: string, query: BoardQuery, words: string[]): Prom
 			// A later snapshot than the index's: what it shows changed is applied (an earlier one's
 			// rows, read by a request that overtook this one's, could be older than the index).
 			if ((found.changed?.length ?? 0) > CHANGES_AT_ONCE) {
-				held.delete(shopId);
+				// A bulk change, or a long transaction holding back the point changes are read from:
+				// answer in SQL for a while, then build the index afresh.
+				held.set(shopId, { usedAt: Date.now(), notBefore: Date.now() + RETRY_AFTER_MS });
 				return null;
 			}
 			index.apply(found.changed ?? [], found.deleted ?? []);
