@@ -3,8 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { SpecSheet } from '../../src/lib/server/db/models';
 import { seedStarterSheets } from '../../src/lib/server/specs';
-import { BASE_URL } from '../helpers/client';
-import { DESKTOP, PHONE, closeBrowsers, openBrowser } from '../helpers/browser';
+import { DESKTOP, PHONE, closeBrowsers, openBrowser, signIn } from '../helpers/browser';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
 
 let shop: ShopFixture;
@@ -14,13 +13,6 @@ beforeAll(async () => {
 	await seedStarterSheets(shop.id);
 });
 
-async function signIn(page: Page, who: { email: string; password: string }) {
-	await page.goto(`${BASE_URL}/signin`);
-	await page.getByLabel('E-mail').fill(who.email);
-	await page.getByLabel('Password').fill(who.password);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL('**/home');
-}
 
 function watchConsole(page: Page) {
 	const problems: string[] = [];

@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import * as jobs from '../../src/lib/server/jobs';
 import { BASE_URL } from '../helpers/client';
-import { DESKTOP, closeBrowsers, openBrowser } from '../helpers/browser';
+import { DESKTOP, closeBrowsers, openBrowser, signIn } from '../helpers/browser';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
 import { actor, createJob } from '../helpers/shopdata';
 
@@ -24,11 +24,7 @@ const params = (page: Page) => Object.fromEntries(new URL(page.url()).searchPara
 describe('the job board', () => {
 	it('keeps filters in the address, fetches them from the API, and Back undoes them one by one', async () => {
 		const page = await (await openBrowser(DESKTOP)).newPage();
-		await page.goto(`${BASE_URL}/signin`);
-		await page.getByLabel('E-mail').fill(shop.staff.writer.email);
-		await page.getByLabel('Password').fill(shop.staff.writer.password);
-		await page.getByRole('button', { name: 'Sign in' }).click();
-		await page.waitForURL('**/home');
+		await signIn(page, shop.staff.writer);
 		await page.goto(`${BASE_URL}/jobs`);
 		expect(await customers(page)).toHaveLength(4);
 		// A mark on the window survives only if the page is never reloaded.

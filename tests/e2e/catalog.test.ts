@@ -5,7 +5,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { Part } from '../../src/lib/server/db/models';
 import { seedDemoCatalog } from '../../src/lib/server/demo-catalog';
 import { BASE_URL } from '../helpers/client';
-import { PHONE, closeBrowsers, openBrowser, screenshotDir } from '../helpers/browser';
+import { PHONE, closeBrowsers, openBrowser, screenshotDir, signIn } from '../helpers/browser';
 import { createShop } from '../helpers/fixtures';
 
 afterAll(closeBrowsers);
@@ -15,11 +15,7 @@ describe('the catalog on a phone', () => {
 		const shop = await createShop('Phone catalog');
 		await seedDemoCatalog(shop.id);
 		const page = await (await openBrowser(PHONE)).newPage();
-		await page.goto(`${BASE_URL}/signin`);
-		await page.getByLabel('E-mail').fill(shop.staff.manager.email);
-		await page.getByLabel('Password').fill(shop.staff.manager.password);
-		await page.getByRole('button', { name: 'Sign in' }).click();
-		await page.waitForURL('**/home');
+		await signIn(page, shop.staff.manager);
 
 		await page.goto(`${BASE_URL}/catalog`);
 		await expect(page.getByRole('link', { name: 'Edit MPC-AH5500' }).isVisible()).resolves.toBe(true);

@@ -4,7 +4,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { Dec, formatMoney } from '../../src/lib/pricing/money';
 import { Customer } from '../../src/lib/server/db/models';
 import { Payment } from '../../src/lib/server/db/payment-models';
-import { PHONE, closeBrowsers, openBrowser } from '../helpers/browser';
+import { PHONE, closeBrowsers, openBrowser, signIn } from '../helpers/browser';
 import { BASE_URL } from '../helpers/client';
 import { createShop, uniqueEmail } from '../helpers/fixtures';
 import { waitForMessage } from '../helpers/mailbox';
@@ -64,11 +64,7 @@ describe('the deposit in the browser', () => {
 
 		// The job shows it paid to the desk.
 		const desk = await (await openBrowser(PHONE)).newPage();
-		await desk.goto(`${BASE_URL}/signin`);
-		await desk.getByLabel('E-mail').fill(shop.staff.writer.email);
-		await desk.getByLabel('Password').fill(shop.staff.writer.password);
-		await desk.getByRole('button', { name: 'Sign in' }).click();
-		await desk.waitForURL('**/home');
+		await signIn(desk, shop.staff.writer);
 		await desk.goto(`${BASE_URL}/jobs/${sent.job.id}`);
 		await desk.getByRole('link', { name: 'Payments' }).click();
 		await desk.waitForURL(`**/jobs/${sent.job.id}/payments`);

@@ -3,7 +3,7 @@
 import sharp from 'sharp';
 import { afterAll, describe, expect, it } from 'vitest';
 import { Customer, Job, Photo, Unit } from '../../src/lib/server/db/models';
-import { PHONE, closeBrowsers, openBrowser } from '../helpers/browser';
+import { PHONE, closeBrowsers, openBrowser, signIn } from '../helpers/browser';
 import { BASE_URL } from '../helpers/client';
 import { createShop } from '../helpers/fixtures';
 
@@ -22,11 +22,7 @@ describe('photos on a job in the browser', () => {
 		page.on('console', (m) => {
 			if (/content security policy/i.test(m.text())) policyViolations.push(m.text());
 		});
-		await page.goto(`${BASE_URL}/signin`);
-		await page.getByLabel('E-mail').fill(shop.staff.technician.email);
-		await page.getByLabel('Password').fill(shop.staff.technician.password);
-		await page.getByRole('button', { name: 'Sign in' }).click();
-		await page.waitForURL('**/home');
+		await signIn(page, shop.staff.technician);
 
 		await page.goto(`${BASE_URL}/jobs/${job.id}`);
 		expect(await page.getByLabel('Take photo').getAttribute('capture')).toBe('environment');

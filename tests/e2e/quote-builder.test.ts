@@ -10,7 +10,7 @@ import { LabourOperation, Part, Quote, QuoteVersion, ReplacementUnit, Shop } fro
 import * as jobs from '../../src/lib/server/jobs';
 import * as quotes from '../../src/lib/server/quotes';
 import * as settings from '../../src/lib/server/settings';
-import { DESKTOP, PHONE, closeBrowsers, openBrowser, screenshotDir } from '../helpers/browser';
+import { DESKTOP, PHONE, closeBrowsers, openBrowser, screenshotDir, signIn } from '../helpers/browser';
 import { BASE_URL } from '../helpers/client';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
 import { actor, createJob } from '../helpers/shopdata';
@@ -27,13 +27,6 @@ async function generatorJob(shop: ShopFixture) {
 	return made.job;
 }
 
-async function signIn(page: Page, email: string, password: string) {
-	await page.goto(`${BASE_URL}/signin`);
-	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Password').fill(password);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL('**/home');
-}
 
 /** Whether the chart's canvas has any pixel painted. */
 const canvasDrawn = (page: Page) =>
@@ -54,7 +47,7 @@ describe('the quote builder in the browser', () => {
 		page.on('console', (m) => {
 			if (/content security policy/i.test(m.text())) policyViolations.push(m.text());
 		});
-		await signIn(page, shop.staff.technician.email, shop.staff.technician.password);
+		await signIn(page, shop.staff.technician);
 
 		await page.goto(`${BASE_URL}/jobs/${job.id}`);
 		await page.getByRole('link', { name: 'Build the estimate' }).click();
@@ -137,7 +130,7 @@ describe('the quote builder in the browser', () => {
 		const shop = await createShop('Builder desktop');
 		const job = await generatorJob(shop);
 		const page = await (await openBrowser(DESKTOP)).newPage();
-		await signIn(page, shop.staff.writer.email, shop.staff.writer.password);
+		await signIn(page, shop.staff.writer);
 		await page.goto(`${BASE_URL}/jobs/${job.id}/quote`);
 		await page.getByRole('button', { name: 'Add a replacement' }).click();
 		const cards = page.locator('article[data-option-kind]');
@@ -192,7 +185,7 @@ describe('the quote builder in the browser', () => {
 		await row.save();
 		const job = await generatorJob(shop);
 		const page = await (await openBrowser(PHONE)).newPage();
-		await signIn(page, shop.staff.technician.email, shop.staff.technician.password);
+		await signIn(page, shop.staff.technician);
 		await page.goto(`${BASE_URL}/jobs/${job.id}/quote`);
 		const repair = page.locator('article[data-option-kind="repair"]');
 		await repair.getByLabel('Find a catalog part').fill('HG-AH55');

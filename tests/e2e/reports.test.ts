@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { db } from '../../src/lib/server/db';
 import { seedDemoHistory } from '../../src/lib/server/demo-history';
 import { BASE_URL } from '../helpers/client';
-import { DESKTOP, PHONE, closeBrowsers, openBrowser, screenshotDir } from '../helpers/browser';
+import { DESKTOP, PHONE, closeBrowsers, openBrowser, screenshotDir, signIn } from '../helpers/browser';
 import { createShop, type ShopFixture } from '../helpers/fixtures';
 
 const REPORTS = ['revenue', 'margin', 'approval', 'outcomes', 'outcomes-by-kind', 'days-to-approval', 'technicians', 'margin-lost'];
@@ -36,13 +36,6 @@ it('the demo history has nothing after the present: no job opened, moved, sent, 
 });
 afterAll(closeBrowsers);
 
-async function signIn(page: Page) {
-	await page.goto(`${BASE_URL}/signin`);
-	await page.getByLabel('E-mail').fill(shop.staff.manager.email);
-	await page.getByLabel('Password').fill(shop.staff.manager.password);
-	await page.getByRole('button', { name: 'Sign in' }).click();
-	await page.waitForURL('**/home');
-}
 
 /** Waits until every chart is drawn, and returns how many canvas pixels each one painted. */
 async function drawnCharts(page: Page) {
@@ -63,7 +56,7 @@ describe('the reports page', () => {
 	it('draws every chart with its table, redraws for a new date range, and downloads the rows as CSV', async () => {
 		const context = await openBrowser(DESKTOP);
 		const page = await context.newPage();
-		await signIn(page);
+		await signIn(page, shop.staff.manager);
 		await page.getByRole('link', { name: 'Reports' }).click();
 		await page.waitForURL('**/reports');
 		expect(await page.getByRole('heading', { level: 1 }).textContent()).toBe('Reports');
@@ -108,7 +101,7 @@ describe('the reports page', () => {
 
 	it('fits a phone: the charts draw and nothing overflows the width', async () => {
 		const page = await (await openBrowser(PHONE)).newPage();
-		await signIn(page);
+		await signIn(page, shop.staff.manager);
 		await page.goto(`${BASE_URL}/reports`);
 		const painted = await drawnCharts(page);
 		expect(Object.values(painted).every((n) => n > 500)).toBe(true);

@@ -2,7 +2,8 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { chromium, type BrowserContext } from 'playwright-core';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { BASE_URL } from './client';
 
 export const PHONE = { width: 390, height: 844 };
 export const DESKTOP = { width: 1280, height: 860 };
@@ -32,3 +33,12 @@ export async function closeBrowsers(): Promise<void> {
 }
 
 export const screenshotDir = path.resolve(import.meta.dirname, '..', '..', '.data', 'screenshots');
+
+/** Signs in through the form, as a person would, and waits for the home page. */
+export async function signIn(page: Page, who: { email: string; password: string }): Promise<void> {
+	await page.goto(`${BASE_URL}/signin`);
+	await page.getByLabel('E-mail').fill(who.email);
+	await page.getByLabel('Password').fill(who.password);
+	await page.getByRole('button', { name: 'Sign in' }).click();
+	await page.waitForURL('**/home');
+}

@@ -5,9 +5,10 @@ import type { BoardQuery, SortKey } from '../board-query';
  * The job board's search and age filters, and its later pages, over one shop's jobs, in memory:
  * the words of every job's search text point to its jobs, and each sort key keeps the jobs in its
  * order. A search then costs in proportion to the jobs it matches, wherever they fall in the order
- * asked for, and counts them all exactly; a page deep in the whole list costs what the first does. PostgreSQL stays the record: this is built from it, brought up to date from it on
- * every request (see `board.ts`), and only chooses which job ids make the page; the rows shown are
- * read from PostgreSQL.
+ * asked for, and counts them all exactly; a page deep in the whole list costs what the first
+ * does. PostgreSQL stays the record: this is built from it, brought up to date from it on every
+ * request (see `board.ts`), and only chooses which job ids make the page; the rows shown are read
+ * from PostgreSQL.
  *
  * The answers are those of the SQL the board runs without it: a job matches when its search text
  * (lower case, as stored) contains every word of the search as typed, lowered; the orders are
@@ -244,12 +245,8 @@ export class BoardIndex {
 		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, perStatus[i]])) as Record<JobStatus, number>;
 
 		// The page: from the nearer end of the selection, skip to it and take it.
-		const offset = (query.page - 1) * query.per;
-		const take = Math.max(0, Math.min(query.per, total - offset));
-		const fromEnd = offset > total / 2;
-		const forward = (query.dir === 'asc') !== fromEnd;
-		let skip = fromEnd ? total - offset - take : offset;
-		const order = this.orders[query.sort];
+		const { take, fromEnd, forward, order, skip: skipped } = this.span(query, total);
+		let skip = skipped;
 		const page: number[] = [];
 		if (total <= FEW) {
 			few.sort((a, b) => (forward ? a - b : b - a));
@@ -277,12 +274,8 @@ export class BoardIndex {
 	private pageOfAll(query: BoardQuery, wanted: Uint8Array) {
 		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, this.totals[i]])) as Record<JobStatus, number>;
 		const total = this.totals.reduce((sum, n, i) => sum + (wanted[i] ? n : 0), 0);
-		const offset = (query.page - 1) * query.per;
-		const take = Math.max(0, Math.min(query.per, total - offset));
-		const fromEnd = offset > total / 2;
-		const forward = (query.dir === 'asc') !== fromEnd;
-		let skip = fromEnd ? total - offset - take : offset;
-		const order = this.orders[query.sort];
+		const { take, fromEnd, forward, order, skip: skipped } = this.span(query, total);
+		let skip = skipped;
 		const page: number[] = [];
 		if (!query.status.length) {
 			const first = forward ? skip : order.length - skip - take;
@@ -298,6 +291,18 @@ export class BoardIndex {
 		}
 		if (fromEnd) page.reverse();
 		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/**
+	 * How to reach a page of `total` selected jobs: read along the order from the end nearer the
+	 * page (`forward` from the start, else from the end), skip `skip` selected jobs, take `take`,
+	 * and turn them round when read `fromEnd`.
+	 */
+	private span(query: BoardQuery, total: number) {
+		const offset = (query.page - 1) * query.per;
+		const take = Math.max(0, Math.min(query.per, total - offset));
+		const fromEnd = offset > total / 2;
+		return { take, fromEnd, forward: (query.dir === 'asc') !== fromEnd, skip: fromEnd ? total - offset - take : offset, order: this.orders[query.sort] };
 	}
 
 	/** Jobs opened since `since`, or (stale) left in their status since before `staleBefore`: one end of the order by opening or by change. */
