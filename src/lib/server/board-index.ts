@@ -105,12 +105,12 @@ export class BoardIndex {
 		for (const key of SORTED) this.resort(key);
 	}
 
-	/** The same as `new BoardIndex(jobs)`, letting other requests run every few thousand jobs and between orders. */
+	/** The same as `new BoardIndex(jobs)`, letting other requests run every thousand jobs and between orders. */
 	static async load(jobs: IndexedJob[]): Promise<BoardIndex> {
 		const index = new BoardIndex();
 		const pause = () => new Promise((resolve) => setImmediate(resolve));
-		for (let i = 0; i < jobs.length; i += 5000) {
-			for (const job of jobs.slice(i, i + 5000)) index.put(job);
+		for (let i = 0; i < jobs.length; i += 1000) {
+			for (const job of jobs.slice(i, i + 1000)) index.put(job);
 			await pause();
 		}
 		for (const key of SORTED) {
