@@ -34,7 +34,6 @@ export const optionalInt = (min: number, max: number, label: string) =>
 			.optional()
 	).transform((v) => (v === undefined ? null : v));
 
-/** A decimal amount kept as a string (never a float), 0 ≤ value ≤ max, at most `places` decimals. */
 /**
  * An amount as people type it: "$649", "1,149.00" or "€ 89" reads as 649, 1149.00 and 89. Commas
  * are dropped only where they group thousands (1,149 or 12,500.50), so "1,5" is still refused
@@ -45,6 +44,7 @@ export function plainAmount(typed: string): string {
 	return /^-?\d{1,3}(,\d{3})+(\.\d+)?$/.test(bare) ? bare.replaceAll(',', '') : bare;
 }
 
+/** A decimal amount kept as a string (never a float), 0 ≤ value ≤ max, at most `places` decimals. */
 export const decimalString = (label: string, { max = '1000000000', places = 2, min = '0' } = {}) =>
 	z
 		.string({ error: `Enter ${label.toLowerCase()}.` })
