@@ -71,6 +71,9 @@ export function codePointKey(value: string | null): string | null {
 	return out;
 }
 
+/** Counts kept by status index, as the board's counts by status name. */
+const byStatus = (n: Int32Array) => Object.fromEntries(JOB_STATUSES.map((s, i) => [s, n[i]])) as Record<JobStatus, number>;
+
 const words = (text: string) => [...new Set(text.split(/\s+/).filter(Boolean))];
 
 export class BoardIndex {
@@ -242,7 +245,7 @@ export class BoardIndex {
 		} else {
 			for (let slot = 0; slot < n; slot++) if (alive[slot]) keep(slot);
 		}
-		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, perStatus[i]])) as Record<JobStatus, number>;
+		const counts = byStatus(perStatus);
 
 		// The page: from the nearer end of the selection, skip to it and take it.
 		const { take, fromEnd, forward, order, skip: skipped } = this.span(query, total);
@@ -272,7 +275,7 @@ export class BoardIndex {
 	 * does, read along the order from its nearer end (with statuses chosen, as far as the page).
 	 */
 	private pageOfAll(query: BoardQuery, wanted: Uint8Array) {
-		const counts = Object.fromEntries(JOB_STATUSES.map((s, i) => [s, this.totals[i]])) as Record<JobStatus, number>;
+		const counts = byStatus(this.totals);
 		const total = this.totals.reduce((sum, n, i) => sum + (wanted[i] ? n : 0), 0);
 		const { take, fromEnd, forward, order, skip: skipped } = this.span(query, total);
 		let skip = skipped;
