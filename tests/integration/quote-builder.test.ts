@@ -91,6 +91,11 @@ async function setShopSettings(shopId: string, extra: Record<string, unknown>) {
 	await row.save();
 }
 
+/** Saves a draft as `client`, at the quote's current lock version. */
+async function saveDraft(client: Client, jobId: string, draft: unknown) {
+	return action(client, `/jobs/${jobId}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(jobId)) });
+}
+
 async function lockOf(jobId: string) {
 	return (await Quote.findOne({ where: { jobId } }))!.lockVersion;
 }
@@ -102,7 +107,7 @@ describe('the live verdict is the engine’s', () => {
 		const { job } = await createJob(shop);
 		await pageData(as.technician, job.id);
 		const draft = alternatorDraft();
-		const saved = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		const saved = await saveDraft(as.technician, job.id, draft);
 		expect(saved.type).toBe('success');
 
 		const body = { currency: 'USD', diagnosticFee: '89.00', ...draft };
@@ -193,7 +198,7 @@ describe('versions', () => {
 		const { job } = await createJob(shop);
 		await pageData(as.technician, job.id);
 		const draft = alternatorDraft();
-		await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		await saveDraft(as.technician, job.id, draft);
 
 		const sent = await action(as.technician, `/jobs/${job.id}/quote?/send`);
 		expect(sent.type).toBe('success');
@@ -215,7 +220,7 @@ describe('versions', () => {
 		expect(again.data.version).toBe(1);
 
 		(draft.options[0].lines[1] as Record<string, unknown>).quantity = '2';
-		const edited = await action(as.technician, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		const edited = await saveDraft(as.technician, job.id, draft);
 		expect(edited.type).toBe('success');
 		const second = await action(as.technician, `/jobs/${job.id}/quote?/send`);
 		expect(second.data.version).toBe(2);
@@ -234,7 +239,7 @@ describe('versions', () => {
 		const { job } = await createJob(shop);
 		await db().query(`UPDATE jobs SET created_at = '2026-11-30T12:12:00Z' WHERE id = :id`, { replacements: { id: job.id } });
 		await pageData(as.writer, job.id);
-		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+		await saveDraft(as.writer, job.id, alternatorDraft());
 		expect((await action(as.writer, `/jobs/${job.id}/quote?/send`)).type).toBe('success');
 		const moves = async () =>
 			(await AuditEvent.findAll({ where: { shopId: shop.id, entityId: job.id, action: 'job.status' }, order: [['createdAt', 'ASC'], ['id', 'ASC']] })).map(
@@ -252,7 +257,7 @@ describe('versions', () => {
 		const { job } = await createJob(shop);
 		await pageData(as.writer, job.id);
 		const draft = alternatorDraft();
-		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		await saveDraft(as.writer, job.id, draft);
 		const sent = await action(as.writer, `/jobs/${job.id}/quote?/send`);
 		const token = String(sent.data.link).split('/q/')[1];
 		await quotes.decide(token, { decision: 'declined', optionIndex: null, signerName: null, reason: 'Buying new', clientAddress: '203.0.113.9', userAgent: 'test' });
@@ -272,7 +277,7 @@ describe('versions', () => {
 		await pageData(as.writer, job.id);
 		const draft = alternatorDraft();
 		draft.options[0].lines = [];
-		const saved = await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+		const saved = await saveDraft(as.writer, job.id, draft);
 		expect(saved.type).toBe('success');
 		const refused = await action(as.writer, `/jobs/${job.id}/quote?/send`);
 		expect(refused.type).toBe('failure');
@@ -285,7 +290,7 @@ describe('versions', () => {
 	it('the desk withdraws the customer links; a technician may not', async () => {
 		const { job } = await createJob(shop);
 		await pageData(as.writer, job.id);
-		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+		await saveDraft(as.writer, job.id, alternatorDraft());
 		await action(as.writer, `/jobs/${job.id}/quote?/send`);
 		const refused = await action(as.technician, `/jobs/${job.id}/quote?/revoke`);
 		expect(refused.status).toBe(403);
@@ -307,7 +312,7 @@ describe('costs and margins by role', () => {
 			// A cost no other figure on the page shares, so finding it means it leaked.
 			const draft = alternatorDraft('148.37');
 			await pageData(as.manager, job.id);
-			await action(as.manager, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(draft), lockVersion: String(await lockOf(job.id)) });
+			await saveDraft(as.manager, job.id, draft);
 
 			const body = { currency: 'USD', diagnosticFee: '89.00', ...draft };
 			const techReply = (await as.technician.postJson('/api/pricing/evaluate', body)).json();
@@ -409,7 +414,7 @@ describe('who may reach the builder', () => {
 		const { job } = await createJob(shop);
 		for (const role of ['owner', 'manager', 'writer', 'technician'] as const) {
 			expect((await as[role].get(`/jobs/${job.id}/quote`)).status).toBe(200);
-			const reply = await action(as[role], `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+			const reply = await saveDraft(as[role], job.id, alternatorDraft());
 			expect(reply.type).toBe('success');
 		}
 		const page = await as.owner.get(`/jobs/${job.id}`);
@@ -420,7 +425,7 @@ describe('who may reach the builder', () => {
 	it("another shop's job is not found on the page and on every action, and nothing changes", async () => {
 		const { job } = await createJob(shop);
 		await pageData(as.writer, job.id);
-		await action(as.writer, `/jobs/${job.id}/quote?/save`, { draft: JSON.stringify(alternatorDraft()), lockVersion: String(await lockOf(job.id)) });
+		await saveDraft(as.writer, job.id, alternatorDraft());
 		await action(as.writer, `/jobs/${job.id}/quote?/send`);
 		const before = await Quote.findOne({ where: { jobId: job.id } });
 		expect((await outsider.get(`/jobs/${job.id}/quote`)).status).toBe(404);
