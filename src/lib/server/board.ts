@@ -59,9 +59,12 @@ export async function page(shopId: string, query: BoardQuery, { useIndex = true 
 	// can) and then the page's rows, so skipped rows cost an index entry each, not a table row.
 	const walk = (order: string, limit: number, skip: number, only = statusFilter) => {
 		values.skip = skip;
+		// No OFFSET at all for the first rows: with one given as a parameter PostgreSQL planned
+		// each request afresh, its estimate for an unknown offset being dearer than for 0.
+		const from = skip > 0 ? ' OFFSET :skip' : '';
 		return skip >= 500
-			? `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${only} ORDER BY ${order} LIMIT ${limit} OFFSET :skip)) j`
-			: `(SELECT j.* ${filtered}${only} ORDER BY ${order} LIMIT ${limit} OFFSET :skip) j`;
+			? `(SELECT j.* FROM jobs j WHERE j.id IN (SELECT j.id ${filtered}${only} ORDER BY ${order} LIMIT ${limit}${from})) j`
+			: `(SELECT j.* ${filtered}${only} ORDER BY ${order} LIMIT ${limit}${from}) j`;
 	};
 	const one = async <T>(sql: string, options?: { reusePlan: boolean }) => (await prepared<T>(sql, values, options))[0];
 
@@ -267,13 +270,15 @@ async function indexed(shopId: string, query: BoardQuery, words: string[]): Prom
 		const [found] = await prepared<Snapshot & { changed: IndexedJob[] | null; deleted: string[] | null; page: BoardRow[] | null }>(
 			// Ordered by writer so that even a plan kept for any values walks the index (a few rows).
 			// A writer past the snapshot's xmax cannot be live: it came with a restore from another
-			// cluster, and the build read that row already.
+			// cluster, and the build read that row already. The point changes are read from is a
+			// sub-select, so PostgreSQL estimates the same for any value and keeps one plan (given
+			// as a plain parameter, it planned each request afresh: 0.4 ms of its 0.8).
 			`SELECT ${SNAPSHOT},
 			        (SELECT json_agg(d) FROM (SELECT ${FIELDS} FROM jobs j
-			          WHERE j.shop_id = :shopId AND j.written_by >= :since::xid8 AND j.written_by < pg_snapshot_xmax(x.s)
+			          WHERE j.shop_id = :shopId AND j.written_by >= (SELECT :since::xid8) AND j.written_by < pg_snapshot_xmax(x.s)
 			          ORDER BY j.written_by LIMIT ${CHANGES_AT_ONCE + 1}) d) AS changed,
 			        (SELECT json_agg(job_id) FROM job_deletions
-			          WHERE shop_id = :shopId AND deleted_by >= :since::xid8 AND deleted_by < pg_snapshot_xmax(x.s)) AS deleted,
+			          WHERE shop_id = :shopId AND deleted_by >= (SELECT :since::xid8) AND deleted_by < pg_snapshot_xmax(x.s)) AS deleted,
 			        (SELECT json_agg(p) FROM (SELECT ${COLUMNS} FROM jobs j JOIN units u ON u.id = j.unit_id
 			          WHERE j.shop_id = :shopId AND j.id = ANY(:ids::uuid[])) p) AS page
 			   FROM (SELECT pg_current_snapshot() AS s) x`,
