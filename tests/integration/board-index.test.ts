@@ -83,6 +83,12 @@ describe('the board index', () => {
 			{ age: '30' as const, sort: 'technician' as const },
 			{ age: '7' as const, sort: 'unit' as const, dir: 'asc' as const },
 			{ age: 'stale' as const, sort: 'changed' as const, dir: 'asc' as const },
+			// Read along the order with the counts from each status's times (many jobs in the window).
+			{ age: 'stale' as const, sort: 'number' as const, dir: 'asc' as const, page: 3 },
+			{ age: 'stale' as const, sort: 'customer' as const, dir: 'desc' as const, page: 2, per: 10 },
+			{ age: 'stale' as const, status: ['quoted' as const, 'declined' as const], sort: 'status' as const },
+			{ age: '30' as const, sort: 'opened' as const, dir: 'asc' as const, page: 4, per: 10 },
+			{ age: '30' as const, status: ['ready' as const], sort: 'promised' as const },
 			{ age: '2' as const, q: 'orla' },
 			{ q: 'orla', status: ['quoted' as const, 'ready' as const], sort: 'promised' as const, dir: 'asc' as const },
 			{ q: 'harrowgate', tech: 'none' },

@@ -53,6 +53,8 @@ const FEW = 1024;
 const WORK_LIMIT = 40_000;
 /** Words held by this many jobs or more are also kept as one bit per job. */
 const FREQUENT = 2048;
+/** How many one- and two-letter words keep their bits (12.5 KB each per 100,000 jobs). */
+const SHORT_KEPT = 64;
 /** More changed jobs than this at once re-sort every order instead of moving jobs one by one. */
 const RESORT_ABOVE = 64;
 
@@ -76,6 +78,19 @@ const byStatus = (n: Int32Array) => Object.fromEntries(JOB_STATUSES.map((s, i) =
 
 const words = (text: string) => [...new Set(text.split(/\s+/).filter(Boolean))];
 
+/** How many values of an ascending list are below `bound` (where `bound` would go in it); `at(i)` reads the list's i-th value. */
+function below(sorted: number[] | { length: number; at: (i: number) => number }, bound: number): number {
+	const at = Array.isArray(sorted) ? (i: number) => sorted[i] : sorted.at;
+	let lo = 0;
+	let hi = sorted.length;
+	while (lo < hi) {
+		const mid = (lo + hi) >>> 1;
+		if (at(mid) < bound) lo = mid + 1;
+		else hi = mid;
+	}
+	return lo;
+}
+
 export class BoardIndex {
 	/** Bumped on every change, so a page chosen before a change can tell it is out of date. */
 	version = 0;
@@ -97,15 +112,24 @@ export class BoardIndex {
 	private ranks: Record<SortKey, Int32Array> = Object.fromEntries(SORTED.map((k) => [k, new Int32Array(0)])) as never;
 	/** Live jobs per status. */
 	private totals = new Int32Array(JOB_STATUSES.length);
+	/** Per status, its live jobs' opening and change times in ascending order: how many fall before a time is one binary search. */
+	private timesOf: Record<'opened' | 'changed', number[][]> = { opened: JOB_STATUSES.map(() => []), changed: JOB_STATUSES.map(() => []) };
 	/** Word → the live jobs whose search text holds it; three letters → the words that hold them. */
 	private postings = new Map<string, number[]>();
 	private byTrigram = new Map<string, string[]>();
 	/** For words held by at least FREQUENT jobs, the same as one bit per slot: asking whether a job holds one is then cheap. */
 	private frequent = new Map<string, Uint32Array>();
+	/**
+	 * For one- and two-letter words searched for (found inside any word, so not listed above), one
+	 * bit per job whose text holds them: read once from every text on first use, kept up to date,
+	 * the SHORT_KEPT used last.
+	 */
+	private shortBits = new Map<string, Uint32Array>();
 
 	constructor(jobs: IndexedJob[] = []) {
 		for (const job of jobs) this.put(job);
 		for (const key of SORTED) this.resort(key);
+		this.retime();
 	}
 
 	/** The same as `new BoardIndex(jobs)`, letting other requests run every thousand jobs and between orders. */
@@ -120,6 +144,7 @@ export class BoardIndex {
 			index.resort(key);
 			await pause();
 		}
+		index.retime();
 		return index;
 	}
 
@@ -148,12 +173,13 @@ export class BoardIndex {
 			const known = this.slotOf.get(job.id);
 			if (!many && known !== undefined && this.alive[known]) this.takeOut(known);
 			const slot = this.put(job);
-			if (!many) for (const key of SORTED) this.insertInOrder(key, slot);
+			if (!many) this.insertInOrders(slot);
 		}
 		for (const key of SORTED) {
 			if (many) this.resort(key);
 			else this.rerank(key);
 		}
+		if (many) this.retime();
 		this.version++;
 		return true;
 	}
@@ -189,11 +215,12 @@ export class BoardIndex {
 
 		const byAge = since > -Infinity;
 		// For a live job (the lists and orders hold only those): count it, and place it when selected.
+		let shortSets: Uint32Array[] = [];
 		const keep = (slot: number) => {
 			if (byAge && opened[slot] < since) return;
 			if (stale && !(changed[slot] < staleBefore && status[slot] !== pickedUp)) return;
 			if (tech && (tech === 'none' ? techs[slot] !== null : techs[slot] !== tech)) return;
-			for (let w = 0; w < short.length; w++) if (!texts[slot].includes(short[w])) return;
+			for (let w = 0; w < shortSets.length; w++) if (!((shortSets[w][slot >>> 5] >>> (slot & 31)) & 1)) return;
 			const state = status[slot];
 			perStatus[state]++;
 			if (wanted[state]) {
@@ -211,37 +238,56 @@ export class BoardIndex {
 			})
 			.sort((a, b) => a.size - b.size);
 		const window = !found.length && !short.length && (byAge || stale) ? this.ageWindow(since, stale, staleBefore) : null;
-		const work = found.length ? found.reduce((sum, f) => sum + Math.min(f.size, found[0].size), 0) : (window?.length ?? n);
+		if (window && !tech) {
+			// Every job in the window is looked at; or, when the jobs kept lie thick enough along
+			// the order asked for, the page is read along it and the counts come from the times.
+			const byTime = this.pageByTime(query, wanted, stale, stale ? staleBefore : since, window.to - window.from);
+			if (byTime) return byTime;
+		}
+		const work = found.length ? found.reduce((sum, f) => sum + Math.min(f.size, found[0].size), 0) : window ? window.to - window.from : n;
 		if (work > WORK_LIMIT) return null;
+		shortSets = short.map((word) => this.bitsOf(word));
 		if (found.length) {
 			// The rarest word's jobs, then kept only where each other word is found too: by its bits
 			// when it is a common word, by walking its jobs when they are few, otherwise by reading
 			// each remaining job's text.
+			// The candidates are kept in a typed array sized once and narrowed in place: a plain
+			// array grown by tens of thousands of pushes cost more than everything else here.
 			const mark = new Uint8Array(n);
-			let candidates: number[] = [];
+			const candidates = new Int32Array(found[0].size);
+			let count = 0;
 			for (const token of found[0].tokens) {
 				for (const slot of this.postings.get(token)!) {
 					if (mark[slot]) continue;
 					mark[slot] = 1;
-					candidates.push(slot);
+					candidates[count++] = slot;
 				}
 			}
-			for (let i = 1; i < found.length && candidates.length; i++) {
+			for (let i = 1; i < found.length && count; i++) {
 				const { word, tokens, size } = found[i];
 				const stamp = i + 1;
 				const sets = tokens.map((token) => this.frequent.get(token));
+				let test: (slot: number) => boolean;
 				if (sets.every(Boolean)) {
-					candidates = candidates.filter((slot) => sets.some((bits) => (bits![slot >>> 5] >>> (slot & 31)) & 1) && (mark[slot] = stamp));
-				} else if (size <= candidates.length * 4) {
+					test = (slot) => sets.some((bits) => (bits![slot >>> 5] >>> (slot & 31)) & 1);
+				} else if (size <= count * 4) {
 					for (const token of tokens) for (const slot of this.postings.get(token)!) if (mark[slot] === stamp - 1) mark[slot] = stamp;
-					candidates = candidates.filter((slot) => mark[slot] === stamp);
+					test = (slot) => mark[slot] === stamp;
 				} else {
-					candidates = candidates.filter((slot) => texts[slot].includes(word) && (mark[slot] = stamp));
+					test = (slot) => texts[slot].includes(word);
 				}
+				let kept = 0;
+				for (let c = 0; c < count; c++) {
+					const slot = candidates[c];
+					if (!test(slot)) continue;
+					mark[slot] = stamp;
+					candidates[kept++] = slot;
+				}
+				count = kept;
 			}
-			for (const slot of candidates) keep(slot);
+			for (let c = 0; c < count; c++) keep(candidates[c]);
 		} else if (window) {
-			for (const slot of window) keep(slot);
+			for (let i = window.from; i < window.to; i++) keep(window.by[i]);
 		} else {
 			for (let slot = 0; slot < n; slot++) if (alive[slot]) keep(slot);
 		}
@@ -286,14 +332,54 @@ export class BoardIndex {
 			if (!forward) page.reverse();
 		} else {
 			if (skip + take > WORK_LIMIT) return null;
-			for (let i = forward ? 0 : order.length - 1; page.length < take && i >= 0 && i < order.length; i += forward ? 1 : -1) {
-				if (!wanted[this.status[order[i]]]) continue;
-				if (skip > 0) skip--;
-				else page.push(order[i]);
-			}
+			const status = this.status;
+			page.push(...this.walk(order, forward, skip, take, WORK_LIMIT, (slot) => wanted[status[slot]] === 1)!);
 		}
 		if (fromEnd) page.reverse();
 		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/**
+	 * Jobs opened since `bound`, or left in their status since before it (`stale`, picked-up jobs
+	 * aside), with no search or technician: counted per status from each status's sorted times, and
+	 * the page read along the order asked for, testing each job, from the page's nearer end. Taken
+	 * when that walk is expected to look at fewer jobs than the `window` of jobs in the time range
+	 * (with the jobs kept spread evenly along the order); given up for the window after four times
+	 * the expected walk, or when the window is too big to look at, after WORK_LIMIT places. Null then.
+	 */
+	private pageByTime(query: BoardQuery, wanted: Uint8Array, stale: boolean, bound: number, window: number) {
+		const pickedUp = STATUS.get('picked_up')!;
+		const perStatus = new Int32Array(JOB_STATUSES.length);
+		this.timesOf[stale ? 'changed' : 'opened'].forEach((sorted, s) => {
+			const before = below(sorted, bound);
+			perStatus[s] = stale ? (s === pickedUp ? 0 : before) : sorted.length - before;
+		});
+		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
+		const { take, fromEnd, forward, order, skip } = this.span(query, total);
+		const expected = total ? ((skip + take + 1) * this.size) / total : this.size;
+		if (expected >= window) return null;
+		const { status } = this;
+		const times = stale ? this.changed : this.opened;
+		const kept = stale
+			? (slot: number) => wanted[status[slot]] === 1 && times[slot] < bound && status[slot] !== pickedUp
+			: (slot: number) => wanted[status[slot]] === 1 && times[slot] >= bound;
+		const page = this.walk(order, forward, skip, take, window > WORK_LIMIT ? WORK_LIMIT : Math.min(WORK_LIMIT, 4 * expected + BLOCK), kept);
+		if (!page) return null;
+		if (fromEnd) page.reverse();
+		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/** Along `order` from its start (`forward`) or end, skips `skip` jobs that pass `kept` and takes `take`; null past `limit` places. */
+	private walk(order: number[], forward: boolean, skip: number, take: number, limit: number, kept: (slot: number) => boolean): number[] | null {
+		const page: number[] = [];
+		let looked = 0;
+		for (let i = forward ? 0 : order.length - 1; page.length < take && i >= 0 && i < order.length; i += forward ? 1 : -1) {
+			if (++looked > limit) return null;
+			if (!kept(order[i])) continue;
+			if (skip > 0) skip--;
+			else page.push(order[i]);
+		}
+		return page;
 	}
 
 	/**
@@ -308,19 +394,15 @@ export class BoardIndex {
 		return { take, fromEnd, forward: (query.dir === 'asc') !== fromEnd, skip: fromEnd ? total - offset - take : offset, order: this.orders[query.sort] };
 	}
 
-	/** Jobs opened since `since`, or (stale) left in their status since before `staleBefore`: one end of the order by opening or by change. */
-	private ageWindow(since: number, stale: boolean, staleBefore: number): number[] {
+	/**
+	 * Jobs opened since `since`, or (stale) left in their status since before `staleBefore`: one end
+	 * of the order by opening or by change, as that order and the places `from` up to `to`.
+	 */
+	private ageWindow(since: number, stale: boolean, staleBefore: number) {
 		const by = stale ? this.orders.changed : this.orders.opened;
 		const times = stale ? this.changed : this.opened;
-		const bound = stale ? staleBefore : since;
-		let lo = 0;
-		let hi = by.length;
-		while (lo < hi) {
-			const mid = (lo + hi) >>> 1;
-			if (times[by[mid]] < bound) lo = mid + 1;
-			else hi = mid;
-		}
-		return stale ? by.slice(0, lo) : by.slice(lo);
+		const split = below({ length: by.length, at: (i: number) => times[by[i]] }, stale ? staleBefore : since);
+		return stale ? { by, from: 0, to: split } : { by, from: split, to: by.length };
 	}
 
 	/** The live words of the index that contain `word` (three letters or more). */
@@ -383,7 +465,22 @@ export class BoardIndex {
 				this.frequent.set(token, made);
 			}
 		}
+		for (const [word, bits] of this.shortBits) if (job.text.includes(word)) bits[slot >>> 5] |= 1 << (slot & 31);
 		return slot;
+	}
+
+	/** The bits of a one- or two-letter word (see `shortBits`), read from every live job's text when it has none yet. */
+	private bitsOf(word: string): Uint32Array {
+		let bits = this.shortBits.get(word);
+		if (bits) {
+			this.shortBits.delete(word); // to the back: the map keeps them in order of use
+		} else {
+			bits = new Uint32Array(this.alive.length >>> 5);
+			for (let slot = 0; slot < this.ids.length; slot++) if (this.alive[slot] && this.texts[slot].includes(word)) bits[slot >>> 5] |= 1 << (slot & 31);
+			if (this.shortBits.size >= SHORT_KEPT) this.shortBits.delete(this.shortBits.keys().next().value!);
+		}
+		this.shortBits.set(word, bits);
+		return bits;
 	}
 
 	/** Takes a job out from under its words and its status's count (its values stay until overwritten). */
@@ -395,6 +492,7 @@ export class BoardIndex {
 			const bits = this.frequent.get(token);
 			if (bits) bits[slot >>> 5] &= ~(1 << (slot & 31));
 		}
+		for (const bits of this.shortBits.values()) bits[slot >>> 5] &= ~(1 << (slot & 31));
 	}
 
 	private grow(capacity: number) {
@@ -408,10 +506,12 @@ export class BoardIndex {
 		this.opened = wider(this.opened, (n) => new Float64Array(n));
 		this.changed = wider(this.changed, (n) => new Float64Array(n));
 		for (const key of SORTED) this.ranks[key] = wider(this.ranks[key], (n) => new Int32Array(n));
-		for (const [token, bits] of this.frequent) {
-			const next = new Uint32Array(capacity >>> 5);
-			next.set(bits);
-			this.frequent.set(token, next);
+		for (const sets of [this.frequent, this.shortBits]) {
+			for (const [word, bits] of sets) {
+				const next = new Uint32Array(capacity >>> 5);
+				next.set(bits);
+				sets.set(word, next);
+			}
 		}
 	}
 
@@ -447,13 +547,36 @@ export class BoardIndex {
 		return lo;
 	}
 
-	/** Takes a job out of every order (before its values change); ranks are renewed by the caller. */
+	/** Takes a job out of every order and out of its status's times (before its values change); ranks are renewed by the caller. */
 	private takeOut(slot: number) {
 		for (const key of SORTED) this.orders[key].splice(this.position(key, slot), 1);
+		for (const [times, sorted] of this.timesFor(slot)) sorted.splice(below(sorted, times[slot]), 1);
 	}
 
-	private insertInOrder(key: SortKey, slot: number) {
-		this.orders[key].splice(this.position(key, slot), 0, slot);
+	private insertInOrders(slot: number) {
+		for (const key of SORTED) this.orders[key].splice(this.position(key, slot), 0, slot);
+		for (const [times, sorted] of this.timesFor(slot)) sorted.splice(below(sorted, times[slot]), 0, times[slot]);
+	}
+
+	/** The job's opening and change times, each with the sorted list of its status that holds it. */
+	private timesFor(slot: number): [Float64Array, number[]][] {
+		return [
+			[this.opened, this.timesOf.opened[this.status[slot]]],
+			[this.changed, this.timesOf.changed[this.status[slot]]]
+		];
+	}
+
+	/** Every status's sorted times, afresh from the live jobs. */
+	private retime() {
+		const opened: number[][] = JOB_STATUSES.map(() => []);
+		const changed: number[][] = JOB_STATUSES.map(() => []);
+		for (let slot = 0; slot < this.ids.length; slot++) {
+			if (!this.alive[slot]) continue;
+			opened[this.status[slot]].push(this.opened[slot]);
+			changed[this.status[slot]].push(this.changed[slot]);
+		}
+		for (const list of [...opened, ...changed]) list.sort((a, b) => a - b);
+		this.timesOf = { opened, changed };
 	}
 
 	private rerank(key: SortKey) {
