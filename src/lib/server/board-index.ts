@@ -125,6 +125,7 @@ export class BoardIndex {
 	 * the SHORT_KEPT used last.
 	 */
 	private shortBits = new Map<string, Uint32Array>();
+	private scratch = { generation: 0, marks: new Int32Array(0), standing: new Int32Array(0), blocks: new Int32Array(0), candidates: new Int32Array(0) };
 
 	constructor(jobs: IndexedJob[] = []) {
 		for (const job of jobs) this.put(job);
@@ -206,10 +207,9 @@ export class BoardIndex {
 		const n = this.ids.length;
 		const rank = this.ranks[query.sort];
 		// Where each selected job stands in the order asked for, and which blocks of BLOCK places hold
-		// one: the page is found by scanning these from the nearer end. A few selected jobs are also
-		// listed, and then sorted instead.
-		const standing = new Uint8Array(n);
-		const blocks = new Uint8Array(Math.ceil(n / BLOCK));
+		// one (marked with this call's generation, see `scratch`): the page is found by scanning
+		// these from the nearer end. A few selected jobs are also listed, and then sorted instead.
+		const { marks, standing, blocks, candidates, generation } = this.scratchFor(searchWords.length);
 		const few: number[] = [];
 		let total = 0;
 
@@ -225,8 +225,8 @@ export class BoardIndex {
 			perStatus[state]++;
 			if (wanted[state]) {
 				const place = rank[slot];
-				standing[place] = 1;
-				blocks[(place / BLOCK) | 0] = 1;
+				standing[place] = generation;
+				blocks[(place / BLOCK) | 0] = generation;
 				if (++total <= FEW) few.push(place);
 			}
 		};
@@ -250,29 +250,26 @@ export class BoardIndex {
 		if (found.length) {
 			// The rarest word's jobs, then kept only where each other word is found too: by its bits
 			// when it is a common word, by walking its jobs when they are few, otherwise by reading
-			// each remaining job's text.
-			// The candidates are kept in a typed array sized once and narrowed in place: a plain
-			// array grown by tens of thousands of pushes cost more than everything else here.
-			const mark = new Uint8Array(n);
-			const candidates = new Int32Array(found[0].size);
+			// each remaining job's text. A job still in after word i holds `generation + i` in `marks`;
+			// the candidates are narrowed in place.
 			let count = 0;
 			for (const token of found[0].tokens) {
 				for (const slot of this.postings.get(token)!) {
-					if (mark[slot]) continue;
-					mark[slot] = 1;
+					if (marks[slot] === generation) continue;
+					marks[slot] = generation;
 					candidates[count++] = slot;
 				}
 			}
 			for (let i = 1; i < found.length && count; i++) {
 				const { word, tokens, size } = found[i];
-				const stamp = i + 1;
+				const stamp = generation + i;
 				const sets = tokens.map((token) => this.frequent.get(token));
 				let test: (slot: number) => boolean;
 				if (sets.every(Boolean)) {
 					test = (slot) => sets.some((bits) => (bits![slot >>> 5] >>> (slot & 31)) & 1);
 				} else if (size <= count * 4) {
-					for (const token of tokens) for (const slot of this.postings.get(token)!) if (mark[slot] === stamp - 1) mark[slot] = stamp;
-					test = (slot) => mark[slot] === stamp;
+					for (const token of tokens) for (const slot of this.postings.get(token)!) if (marks[slot] === stamp - 1) marks[slot] = stamp;
+					test = (slot) => marks[slot] === stamp;
 				} else {
 					test = (slot) => texts[slot].includes(word);
 				}
@@ -280,7 +277,7 @@ export class BoardIndex {
 				for (let c = 0; c < count; c++) {
 					const slot = candidates[c];
 					if (!test(slot)) continue;
-					mark[slot] = stamp;
+					marks[slot] = stamp;
 					candidates[kept++] = slot;
 				}
 				count = kept;
@@ -301,12 +298,13 @@ export class BoardIndex {
 			few.sort((a, b) => (forward ? a - b : b - a));
 			for (const place of few.slice(skip, skip + take)) page.push(order[place]);
 		} else {
-			for (let b = forward ? 0 : blocks.length - 1; page.length < take && b >= 0 && b < blocks.length; b += forward ? 1 : -1) {
-				if (!blocks[b]) continue;
+			const lastBlock = Math.ceil(n / BLOCK) - 1;
+			for (let b = forward ? 0 : lastBlock; page.length < take && b >= 0 && b <= lastBlock; b += forward ? 1 : -1) {
+				if (blocks[b] !== generation) continue;
 				const first = b * BLOCK;
 				const last = Math.min(first + BLOCK, n) - 1;
 				for (let i = forward ? first : last; page.length < take && i >= first && i <= last; i += forward ? 1 : -1) {
-					if (!standing[i]) continue;
+					if (standing[i] !== generation) continue;
 					if (skip > 0) skip--;
 					else page.push(order[i]);
 				}
@@ -314,6 +312,29 @@ export class BoardIndex {
 		}
 		if (fromEnd) page.reverse();
 		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/**
+	 * The working arrays of `select`, kept from call to call (a select runs start to end without
+	 * yielding): allocating and zeroing them for each request made more garbage than anything else
+	 * a request does. Instead of clearing them, each call takes new generation numbers, one per
+	 * word searched for, and an entry counts only when it holds one of this call's.
+	 */
+	private scratchFor(words: number) {
+		const scratch = this.scratch;
+		const capacity = this.alive.length;
+		if (scratch.marks.length < capacity || scratch.generation > 0x7fff_0000) {
+			Object.assign(scratch, {
+				generation: 0,
+				marks: new Int32Array(capacity),
+				standing: new Int32Array(capacity),
+				blocks: new Int32Array(Math.ceil(capacity / BLOCK)),
+				candidates: new Int32Array(capacity)
+			});
+		}
+		const generation = scratch.generation + 1;
+		scratch.generation = generation + words;
+		return { ...scratch, generation };
 	}
 
 	/**
