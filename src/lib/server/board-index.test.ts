@@ -194,6 +194,17 @@ describe('BoardIndex', () => {
 		for (const q of searches) check(q);
 	});
 
+	it('reads a later page of a rare status however far along the order its jobs lie', () => {
+		// 45,000 jobs, the last 60 by number ready: page 2 of the ready ones passes 44,940 others first.
+		const jobs = Array.from({ length: 45_000 }, (_, i) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: i >= 44_940 ? 'ready' : 'picked_up', tech: null, customer: 'C', unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: [] }, '1')
+		);
+		const index = new BoardIndex(jobs);
+		const query: BoardQuery = { q: '', status: ['ready'], tech: '', age: '', sort: 'number', dir: 'asc', page: 2, per: 25 };
+		expect(index.select(query, [], NOW_US)).toEqual(plainly(jobs, query, []));
+		expect(index.select(query, [], NOW_US)?.ids[0]).toBe(jobs[44_965].id);
+	});
+
 	it('leaves to the SQL a search that would look at too many jobs', () => {
 		const jobs = Array.from({ length: 40_001 }, (_, i) =>
 			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: 'checked_in', tech: null, customer: 'C', unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: ['output'] }, '1')

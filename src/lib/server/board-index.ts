@@ -354,7 +354,7 @@ export class BoardIndex {
 		} else {
 			if (skip + take > WORK_LIMIT) return null;
 			const status = this.status;
-			page.push(...this.walk(order, forward, skip, take, WORK_LIMIT, (slot) => wanted[status[slot]] === 1)!);
+			page.push(...this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1)!);
 		}
 		if (fromEnd) page.reverse();
 		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
