@@ -107,15 +107,31 @@ describe('BoardIndex', () => {
 		);
 	});
 
+	it('answers the same through word and status bits when matches are too many to look at one by one', () => {
+		fc.assert(
+			fc.property(fc.array(job, { maxLength: 60 }), queryOf, (made, query) => {
+				const jobs = unique(made.map((j) => toJob(j, '1')));
+				const words = query.q.split(' ').filter(Boolean);
+				// A limit of 4 jobs sends nearly every search down the path a large shop takes.
+				const found = new BoardIndex(jobs, { workLimit: 4 }).select(query, words, NOW_US);
+				if (found) expect(found).toEqual(plainly(jobs, query, words));
+				// Left to the SQL only with a technician or age filter, or deep in chosen statuses.
+				else expect(Boolean(query.tech || query.age || (!words.length && query.status.length))).toBe(true);
+			}),
+			{ numRuns: 300 }
+		);
+	});
+
 	it('brought up to date change by change, it answers as one built from the final jobs', () => {
 		fc.assert(
 			fc.property(
 				fc.array(job, { minLength: 1, maxLength: 40 }),
 				fc.array(fc.record({ at: fc.nat(), replace: job, remove: fc.boolean() }), { maxLength: 30 }),
 				queryOf,
-				(made, changes, query) => {
+				fc.constantFrom(4, 40_000),
+				(made, changes, query, workLimit) => {
 					let jobs = unique(made.map((j) => toJob(j, '1')));
-					const index = new BoardIndex(jobs);
+					const index = new BoardIndex(jobs, { workLimit });
 					const words = query.q.split(' ').filter(Boolean);
 					// Asked once before the changes: what a search builds on first use (a short word's
 					// bits) must then follow them.
@@ -133,8 +149,10 @@ describe('BoardIndex', () => {
 						}
 					});
 					expect(index.size).toBe(jobs.length);
-					expect(index.select(query, words, NOW_US)).toEqual(new BoardIndex(jobs).select(query, words, NOW_US));
-					expect(index.select(query, words, NOW_US)).toEqual(plainly(jobs, query, words));
+					const found = index.select(query, words, NOW_US);
+					expect(found).toEqual(new BoardIndex(jobs, { workLimit }).select(query, words, NOW_US));
+					if (workLimit > jobs.length) expect(found).not.toBeNull();
+					if (found) expect(found).toEqual(plainly(jobs, query, words));
 				}
 			),
 			{ numRuns: 200 }
@@ -155,6 +173,34 @@ describe('BoardIndex', () => {
 			}),
 			{ numRuns: 150 }
 		);
+	});
+
+	it('keeps word and status bits right as jobs move, change their words and go', () => {
+		const make = (i: number, status: JobStatus, words: string[], xid: string) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status, tech: null, customer: `C${i % 5}`, unit: 'U', promised: null, openedDays: 1, changedDays: 1, words }, xid);
+		let jobs = Array.from({ length: 30 }, (_, i) => make(i, 'diagnosing', i % 3 ? ['output'] : ['surge'], '1'));
+		const index = new BoardIndex(jobs, { workLimit: 4 });
+		const query: BoardQuery = { q: 'output', status: [], tech: '', age: '', sort: 'customer', dir: 'asc', page: 1, per: 10 };
+		const check = (q: string) => expect(index.select({ ...query, q }, q.split(' '), NOW_US)).toEqual(plainly(jobs, { ...query, q }, q.split(' ')));
+		['output', 'ou', 'su'].forEach(check); // their bits are made now, and must follow what comes
+		const moved = jobs.slice(0, 12).map((j, i) => make(i, i % 2 ? 'quoted' : 'ready', i % 4 ? ['output'] : ['surge'], '2'));
+		index.apply(moved, [jobs[20].id, jobs[21].id]);
+		jobs = [...moved, ...jobs.slice(12).filter((j) => j.id !== jobs[20].id && j.id !== jobs[21].id)];
+		['output', 'ou', 'su'].forEach(check);
+	});
+
+	it('finds a part of more words than it lists through its bits, beside a rare word', () => {
+		// Thirty serial numbers share 'sn-0': more words than the limit of 10 lets it list.
+		const jobs = Array.from({ length: 30 }, (_, i) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: JOB_STATUSES[i % 8], tech: null, customer: `C${i % 4}`, unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: [`sn-${String(i).padStart(4, '0')}`, ...(i % 9 === 0 ? ['kestrel'] : [])] }, '1')
+		);
+		const index = new BoardIndex(jobs, { workLimit: 10 });
+		for (const q of ['kestrel sn-0', 'sn-00 kestrel', 'sn-0', 'sn-001 sn-0']) {
+			const query: BoardQuery = { q, status: [], tech: '', age: '', sort: 'customer', dir: 'asc', page: 1, per: 25 };
+			const found = index.select(query, q.split(' '), NOW_US);
+			expect(found).toEqual(plainly(jobs, query, q.split(' ')));
+			expect(found!.total).toBeGreaterThan(0);
+		}
 	});
 
 	it('skips a job already held as written by the same transaction, and takes many changes at once', () => {
@@ -205,14 +251,20 @@ describe('BoardIndex', () => {
 		expect(index.select(query, [], NOW_US)?.ids[0]).toBe(jobs[44_965].id);
 	});
 
-	it('leaves to the SQL a search that would look at too many jobs', () => {
-		const jobs = Array.from({ length: 40_001 }, (_, i) =>
-			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: 'checked_in', tech: null, customer: 'C', unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: ['output'] }, '1')
+	it('counts a search found in more jobs than it looks at one by one through bits, and leaves it to the SQL with a technician or age filter', () => {
+		// 'output' in 48,000 of 60,000 jobs: more than the 40,000 a search looks at one by one.
+		const jobs = Array.from({ length: 60_000 }, (_, i) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: i % 3 ? 'checked_in' : 'ready', tech: null, customer: `C${i % 7}`, unit: 'U', promised: null, openedDays: 1, changedDays: 1, words: i % 5 ? ['output'] : [] }, '1')
 		);
 		const index = new BoardIndex(jobs);
 		const query: BoardQuery = { q: 'output', status: [], tech: '', age: '', sort: 'customer', dir: 'asc', page: 1, per: 25 };
-		expect(index.select(query, ['output'], NOW_US)).toBeNull();
-		expect(index.select({ ...query, q: 'no' }, ['no'], NOW_US)).toBeNull();
+		for (const asked of [query, { ...query, page: 1000, dir: 'desc' as const }, { ...query, q: 'no', status: ['ready' as const], page: 300 }, { ...query, q: 'ou 3', sort: 'number' as const }]) {
+			const words = asked.q.split(' ');
+			expect(index.select(asked, words, NOW_US)).toEqual(plainly(jobs, asked, words));
+		}
+		expect(index.select(query, ['output'], NOW_US)?.total).toBe(48_000);
+		expect(index.select({ ...query, tech: 'none' }, ['output'], NOW_US)).toBeNull();
+		expect(index.select({ ...query, age: '30' }, ['output'], NOW_US)).toBeNull();
 		expect(index.select({ ...query, q: '#40001' }, ['#40001'], NOW_US)?.total).toBe(1);
 	});
 });
