@@ -100,11 +100,13 @@ describe('the board index', () => {
 		expect(compared).toBeGreaterThan(150);
 	});
 
-	it('gives the same later pages of all jobs, and of chosen statuses, as the SQL for every sort', async () => {
+	it('gives the same later pages of all jobs, of chosen statuses and of a technician, as the SQL for every sort', async () => {
 		for (const sort of SORT_KEYS) {
 			for (const dir of ['asc', 'desc'] as const) {
 				for (const p of [2, 7, 13]) await agree(shop.id, query({ sort, dir, page: p }));
 				await agree(shop.id, query({ sort, dir, page: 2, per: 10, status: ['quoted', 'picked_up'] }));
+				await agree(shop.id, query({ sort, dir, page: 3, per: 10, tech: shop.staff.technician.id }));
+				await agree(shop.id, query({ sort, dir, page: 2, per: 10, tech: 'none', status: ['quoted', 'ready'] }));
 			}
 		}
 		expect((await page(shop.id, query({ page: 13 }))).rows.length).toBeGreaterThan(0);

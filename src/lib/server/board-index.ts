@@ -117,8 +117,9 @@ export class BoardIndex {
 	private opened = new Float64Array(0);
 	private changed = new Float64Array(0);
 	private ranks: Record<SortKey, Int32Array> = Object.fromEntries(SORTED.map((k) => [k, new Int32Array(0)])) as never;
-	/** Live jobs per status. */
+	/** Live jobs per status, and per technician (null: none) and status. */
 	private totals = new Int32Array(JOB_STATUSES.length);
+	private techTotals = new Map<string | null, Int32Array>();
 	/** Per status, its live jobs' opening and change times in ascending order: how many fall before a time is one binary search. */
 	private timesOf: Record<'opened' | 'changed', number[][]> = { opened: JOB_STATUSES.map(() => []), changed: JOB_STATUSES.map(() => []) };
 	/** Word → the live jobs whose search text holds it; three letters → the words that hold them. */
@@ -217,7 +218,7 @@ export class BoardIndex {
 		const tech = query.tech;
 		const long = searchWords.filter((w) => w.length >= 3);
 		const short = searchWords.filter((w) => w.length < 3);
-		if (!searchWords.length && !query.age && !tech) return this.pageOfAll(query, wanted);
+		if (!searchWords.length && !query.age) return tech ? this.pageOfTechnician(query, wanted, tech) : this.pageOfAll(query, wanted);
 		const { alive, status, opened, changed, texts, techs } = this;
 		const n = this.ids.length;
 		const rank = this.ranks[query.sort];
@@ -377,6 +378,21 @@ export class BoardIndex {
 	}
 
 	/**
+	 * A page of one technician's jobs (or of those with none), in some statuses or all: counted from
+	 * the totals kept per technician and read along the order from the page's nearer end.
+	 */
+	private pageOfTechnician(query: BoardQuery, wanted: Uint8Array, tech: string) {
+		const key = tech === 'none' ? null : tech;
+		const perStatus = this.techTotals.get(key) ?? new Int32Array(JOB_STATUSES.length);
+		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
+		const { take, fromEnd, forward, order, skip } = this.span(query, total);
+		const { status, techs } = this;
+		const page = this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1 && techs[slot] === key)!;
+		if (fromEnd) page.reverse();
+		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/**
 	 * Jobs opened since `bound`, or left in their status since before it (`stale`, picked-up jobs
 	 * aside), with no search or technician: counted per status from each status's sorted times, and
 	 * the page read along the order asked for, testing each job, from the page's nearer end. Taken
@@ -498,6 +514,7 @@ export class BoardIndex {
 		this.texts[slot] = job.text;
 		this.status[slot] = STATUS.get(job.status)!;
 		this.totals[this.status[slot]]++;
+		this.techTotal(job.tech)[this.status[slot]]++;
 		this.statusBits[this.status[slot]][slot >>> 5] |= 1 << (slot & 31);
 		this.techs[slot] = job.tech;
 		this.opened[slot] = Number(job.opened);
@@ -534,6 +551,12 @@ export class BoardIndex {
 		return slot;
 	}
 
+	private techTotal(tech: string | null): Int32Array {
+		let counts = this.techTotals.get(tech);
+		if (!counts) this.techTotals.set(tech, (counts = new Int32Array(JOB_STATUSES.length)));
+		return counts;
+	}
+
 	/** The bits of a word as typed (see `wordBits`), read from every live job's text when it has none yet. */
 	private bitsOf(word: string): Uint32Array {
 		let bits = this.wordBits.get(word);
@@ -551,6 +574,7 @@ export class BoardIndex {
 	/** Takes a job out from under its words and its status's count (its values stay until overwritten). */
 	private unlink(slot: number) {
 		this.totals[this.status[slot]]--;
+		this.techTotal(this.techs[slot])[this.status[slot]]--;
 		this.statusBits[this.status[slot]][slot >>> 5] &= ~(1 << (slot & 31));
 		for (const token of words(this.texts[slot])) {
 			const jobs = this.postings.get(token)!;

@@ -108,9 +108,9 @@ export async function page(shopId: string, query: BoardQuery, { useIndex = true 
 		return answer(query, selected.page, selected.matched <= COUNT_LIMIT ? selected.matched : null, false, counts);
 	}
 
-	// A later page of all jobs, or of some statuses, is read along the index's order at the cost of
-	// the first; the SQL below skips index entries to reach it.
-	if (offset > 0 && !query.tech && useIndex) {
+	// A later page of all jobs, or of some statuses or one technician's, is read along the index's
+	// order at the cost of the first; the SQL below skips index entries to reach it.
+	if (offset > 0 && useIndex) {
 		const fromIndex = await indexed(shopId, query, words);
 		if (fromIndex) return fromIndex;
 	}
