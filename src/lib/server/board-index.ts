@@ -312,8 +312,10 @@ export class BoardIndex {
 		let skip = skipped;
 		const page: number[] = [];
 		if (total <= FEW) {
-			few.sort((a, b) => (forward ? a - b : b - a));
-			for (const place of few.slice(skip, skip + take)) page.push(order[place]);
+			// A typed array sorts numbers natively, several times faster than a comparison function.
+			const places = Int32Array.from(few).sort();
+			if (!forward) places.reverse();
+			for (const place of places.subarray(skip, skip + take)) page.push(order[place]);
 		} else {
 			const lastBlock = Math.ceil(n / BLOCK) - 1;
 			for (let b = forward ? 0 : lastBlock; page.length < take && b >= 0 && b <= lastBlock; b += forward ? 1 : -1) {
