@@ -203,6 +203,32 @@ describe('BoardIndex', () => {
 		}
 	});
 
+	it('reads later pages of chosen statuses and of one technician block by block, as jobs move and a technician joins', () => {
+		const techs = [null, 'a0000000-0000-4000-8000-000000000001', 'a0000000-0000-4000-8000-000000000002'];
+		const make = (i: number, status: JobStatus, tech: string | null, xid: string) =>
+			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: ((i * 7919) % 2003) + 1, status, tech, customer: `C${i % 41}`, unit: `U${i % 13}`, promised: null, openedDays: i % 40, changedDays: i % 17, words: [] }, xid);
+		let jobs = Array.from({ length: 2000 }, (_, i) => make(i, JOB_STATUSES[(i * 3) % 8], techs[i % 3], '1'));
+		const index = new BoardIndex(jobs);
+		const check = () => {
+			for (const sort of SORT_KEYS) {
+				for (const [dir, page] of [['asc', 9], ['desc', 30], ['asc', 61]] as const) {
+					for (const filter of [{ status: ['ready' as const, 'quoted' as const] }, { tech: techs[1]! }, { tech: 'none', status: ['picked_up' as const] }, { tech: techs[2]!, status: ['diagnosing' as const] }]) {
+						const query: BoardQuery = { q: '', status: [], tech: '', age: '', sort, dir, page, per: 10, ...filter };
+						expect(index.select(query, [], NOW_US)).toEqual(plainly(jobs, query, []));
+					}
+				}
+			}
+		};
+		check();
+		// A few jobs move (one by one) and then many (every order sorted again), some to a new technician.
+		for (const [from, to, xid] of [[0, 40, '2'], [100, 400, '3']] as const) {
+			const moved = jobs.slice(from, to).map((j, k) => make(from + k, JOB_STATUSES[k % 8], k % 5 ? techs[k % 3] : 'a0000000-0000-4000-8000-000000000003', xid));
+			index.apply(moved, []);
+			jobs = jobs.map((j) => moved.find((m) => m.id === j.id) ?? j);
+			check();
+		}
+	});
+
 	it('skips a job already held as written by the same transaction, and takes many changes at once', () => {
 		const jobs = Array.from({ length: 100 }, (_, i) =>
 			toJob({ id: `00000000-0000-4000-8000-${String(i).padStart(12, '0')}`, number: i + 1, status: 'checked_in', tech: null, customer: `C${i}`, unit: 'U', promised: null, openedDays: i % 30, changedDays: 1, words: ['orla'] }, '5')

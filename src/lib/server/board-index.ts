@@ -109,6 +109,15 @@ export class BoardIndex {
 	private xids: (string | null)[] = [];
 	private texts: string[] = [];
 	private techs: (string | null)[] = [];
+	/** Technicians (null: none) numbered in the order first met, and each slot's number. */
+	private techNumbers = new Map<string | null, number>();
+	private techNo = new Uint16Array(0);
+	/**
+	 * For each order, per block of BLOCK places, how many of its jobs each technician holds in each
+	 * status (index: block × groups + technician × statuses + status): a walk for a later page of
+	 * chosen statuses or of one technician skips whole blocks by these counts.
+	 */
+	private blockCounts: Record<SortKey, Int32Array> = Object.fromEntries(SORTED.map((k) => [k, new Int32Array(0)])) as never;
 	private keys: Record<SortKey, (string | number | null)[]> = Object.fromEntries(SORTED.map((k) => [k, []])) as never;
 	private orders: Record<SortKey, number[]> = Object.fromEntries(SORTED.map((k) => [k, []])) as never;
 	// Per slot, in typed arrays so a scan over every job stays a tight loop.
@@ -371,12 +380,47 @@ export class BoardIndex {
 			page.push(...order.slice(first, first + take));
 			if (!forward) page.reverse();
 		} else {
-			if (skip + take > this.workLimit) return null;
 			const status = this.status;
-			page.push(...this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1)!);
+			page.push(...this.walkBlocks(query.sort, forward, skip, take, wanted, null, (slot) => wanted[status[slot]] === 1));
 		}
 		if (fromEnd) page.reverse();
 		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+	}
+
+	/**
+	 * Along the order of `key` from its start (`forward`) or end, skips `skip` jobs in the `wanted`
+	 * statuses (of one technician's, by number, or of all) and takes `take`: whole blocks of places
+	 * are skipped by their counts, and only the blocks the page lies in are read, testing each job
+	 * with `kept`.
+	 */
+	private walkBlocks(key: SortKey, forward: boolean, skip: number, take: number, wanted: Uint8Array, techNo: number | null, kept: (slot: number) => boolean): number[] {
+		const order = this.orders[key];
+		const counts = this.blockCounts[key];
+		const statuses = JOB_STATUSES.length;
+		const groups = this.techNumbers.size * statuses;
+		const counted: number[] = [];
+		for (let t = 0; t < this.techNumbers.size; t++) {
+			if (techNo !== null && t !== techNo) continue;
+			for (let s = 0; s < statuses; s++) if (wanted[s]) counted.push(t * statuses + s);
+		}
+		const page: number[] = [];
+		const lastBlock = Math.ceil(order.length / BLOCK) - 1;
+		for (let b = forward ? 0 : lastBlock; page.length < take && b >= 0 && b <= lastBlock; b += forward ? 1 : -1) {
+			let inBlock = 0;
+			for (const group of counted) inBlock += counts[b * groups + group];
+			if (skip >= inBlock) {
+				skip -= inBlock;
+				continue;
+			}
+			const first = b * BLOCK;
+			const last = Math.min(first + BLOCK, order.length) - 1;
+			for (let i = forward ? first : last; page.length < take && i >= first && i <= last; i += forward ? 1 : -1) {
+				if (!kept(order[i])) continue;
+				if (skip > 0) skip--;
+				else page.push(order[i]);
+			}
+		}
+		return page;
 	}
 
 	/**
@@ -387,9 +431,10 @@ export class BoardIndex {
 		const key = tech === 'none' ? null : tech;
 		const perStatus = this.techTotals.get(key) ?? new Int32Array(JOB_STATUSES.length);
 		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
-		const { take, fromEnd, forward, order, skip } = this.span(query, total);
-		const { status, techs } = this;
-		const page = this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1 && techs[slot] === key)!;
+		const { take, fromEnd, forward, skip } = this.span(query, total);
+		const { status, techNo } = this;
+		const number = this.techNumbers.get(key);
+		const page = number === undefined ? [] : this.walkBlocks(query.sort, forward, skip, take, wanted, number, (slot) => wanted[status[slot]] === 1 && techNo[slot] === number);
 		if (fromEnd) page.reverse();
 		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
 	}
@@ -519,6 +564,9 @@ export class BoardIndex {
 		this.techTotal(job.tech)[this.status[slot]]++;
 		this.statusBits[this.status[slot]][slot >>> 5] |= 1 << (slot & 31);
 		this.techs[slot] = job.tech;
+		let techNo = this.techNumbers.get(job.tech);
+		if (techNo === undefined) this.techNumbers.set(job.tech, (techNo = this.techNumbers.size));
+		this.techNo[slot] = techNo;
 		this.opened[slot] = Number(job.opened);
 		this.changed[slot] = Number(job.changed);
 		const keys = this.keys;
@@ -588,13 +636,14 @@ export class BoardIndex {
 	}
 
 	private grow(capacity: number) {
-		const wider = <T extends Uint8Array | Float64Array | Int32Array>(old: T, make: (n: number) => T) => {
+		const wider = <T extends Uint8Array | Uint16Array | Float64Array | Int32Array>(old: T, make: (n: number) => T) => {
 			const next = make(capacity);
 			next.set(old);
 			return next;
 		};
 		this.alive = wider(this.alive, (n) => new Uint8Array(n));
 		this.status = wider(this.status, (n) => new Uint8Array(n));
+		this.techNo = wider(this.techNo, (n) => new Uint16Array(n));
 		this.opened = wider(this.opened, (n) => new Float64Array(n));
 		this.changed = wider(this.changed, (n) => new Float64Array(n));
 		for (const key of SORTED) this.ranks[key] = wider(this.ranks[key], (n) => new Int32Array(n));
@@ -674,6 +723,14 @@ export class BoardIndex {
 	private rerank(key: SortKey) {
 		const order = this.orders[key];
 		const rank = this.ranks[key];
-		for (let i = 0; i < order.length; i++) rank[order[i]] = i;
+		const { status, techNo } = this;
+		const groups = this.techNumbers.size * JOB_STATUSES.length;
+		const counts = new Int32Array(Math.ceil(order.length / BLOCK) * groups);
+		for (let i = 0; i < order.length; i++) {
+			const slot = order[i];
+			rank[slot] = i;
+			counts[((i / BLOCK) | 0) * groups + techNo[slot] * JOB_STATUSES.length + status[slot]]++;
+		}
+		this.blockCounts[key] = counts;
 	}
 }
