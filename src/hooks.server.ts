@@ -4,18 +4,26 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { lucia } from '$lib/server/auth/lucia';
 import { closeDb, db } from '$lib/server/db';
 import * as outbox from '$lib/server/mail/outbox';
+import { answering } from '$lib/server/answering';
+
+/** Requests being answered, for shutting down (below). */
+const requests = answering();
 
 export const init: ServerInit = async () => {
 	db();
 	// Without SMTP_URL this only warns: e-mail then waits in the outbox.
 	const stopMail = outbox.startWorker();
-	// Emitted once every request has finished: let the sending loop end, then the pool, so the
-	// process exits at once.
+	// Emitted once every connection has closed. A request whose client went away may still be
+	// running: let it finish (10 s at most), then the sending loop, then the pool, so the process
+	// exits at once and no request finds the pool closed.
 	process.once('sveltekit:shutdown', async () => {
+		await requests.settled(10_000);
 		await stopMail();
 		await closeDb();
 	});
 };
+
+const countRequests: Handle = ({ event, resolve }) => requests.count(async () => resolve(event));
 
 /**
  * Refuses unreadable bodies with a 400 (below), and reads and drops a body the route answered
@@ -103,7 +111,7 @@ const authenticate: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle = sequence(guardBody, securityHeaders, authenticate);
+export const handle = sequence(countRequests, guardBody, securityHeaders, authenticate);
 
 /** Refusals SvelteKit makes itself before a route runs, in the product's words. */
 const REFUSALS: Record<number, string> = {
