@@ -85,18 +85,20 @@ function ones(word: number): number {
 	return Math.imul((word + (word >>> 4)) & 0x0f0f0f0f, 0x01010101) >>> 24;
 }
 
-/** How many values of an ascending list are below `bound` (where `bound` would go in it); `at(i)` reads the list's i-th value. */
-function below(sorted: number[] | { length: number; at: (i: number) => number }, bound: number): number {
-	const at = Array.isArray(sorted) ? (i: number) => sorted[i] : sorted.at;
+/** In a list of `length` places whose first ones are `before` and the rest not, how many are (a binary search). */
+function countBefore(length: number, before: (place: number) => boolean): number {
 	let lo = 0;
-	let hi = sorted.length;
+	let hi = length;
 	while (lo < hi) {
 		const mid = (lo + hi) >>> 1;
-		if (at(mid) < bound) lo = mid + 1;
+		if (before(mid)) lo = mid + 1;
 		else hi = mid;
 	}
 	return lo;
 }
+
+/** How many values of an ascending list are below `bound` (where `bound` would go in it). */
+const below = (sorted: number[], bound: number) => countBefore(sorted.length, (i) => sorted[i] < bound);
 
 export class BoardIndex {
 	/** Bumped on every change, so a page chosen before a change can tell it is out of date. */
@@ -527,7 +529,8 @@ export class BoardIndex {
 	private ageWindow(since: number, stale: boolean, staleBefore: number) {
 		const by = stale ? this.orders.changed : this.orders.opened;
 		const times = stale ? this.changed : this.opened;
-		const split = below({ length: by.length, at: (i: number) => times[by[i]] }, stale ? staleBefore : since);
+		const bound = stale ? staleBefore : since;
+		const split = countBefore(by.length, (i) => times[by[i]] < bound);
 		return stale ? { by, from: 0, to: split } : { by, from: split, to: by.length };
 	}
 
@@ -678,14 +681,7 @@ export class BoardIndex {
 	/** Where a job stands, or would stand, in a key's order, by its values as now held. */
 	private position(key: SortKey, slot: number): number {
 		const order = this.orders[key];
-		let lo = 0;
-		let hi = order.length;
-		while (lo < hi) {
-			const mid = (lo + hi) >>> 1;
-			if (this.compare(key, order[mid], slot) < 0) lo = mid + 1;
-			else hi = mid;
-		}
-		return lo;
+		return countBefore(order.length, (i) => this.compare(key, order[i], slot) < 0);
 	}
 
 	/** Takes a job out of every order and out of its status's times (before its values change); ranks are renewed by the caller. */
