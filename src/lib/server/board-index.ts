@@ -100,6 +100,18 @@ function countBefore(length: number, before: (place: number) => boolean): number
 /** How many values of an ascending list are below `bound` (where `bound` would go in it). */
 const below = (sorted: number[], bound: number) => countBefore(sorted.length, (i) => sorted[i] < bound);
 
+/** What `select` answers: counts per status, the total under the status filter, the page's job ids. */
+type Selected = { counts: Record<JobStatus, number>; total: number; ids: string[] };
+
+/** How to read a page along an order (see `BoardIndex.span`). */
+interface Span {
+	take: number;
+	fromEnd: boolean;
+	forward: boolean;
+	skip: number;
+	order: number[];
+}
+
 export class BoardIndex {
 	/** Bumped on every change, so a page chosen before a change can tell it is out of date. */
 	version = 0;
@@ -218,7 +230,7 @@ export class BoardIndex {
 	 * technician or age filter comes with more than that: so many matches lie close together in
 	 * any order, where the SQL's walk along the sort index finds a page soonest.
 	 */
-	select(query: BoardQuery, searchWords: string[], nowUs: number): { counts: Record<JobStatus, number>; total: number; ids: string[] } | null {
+	select(query: BoardQuery, searchWords: string[], nowUs: number): Selected | null {
 		const perStatus = new Int32Array(JOB_STATUSES.length);
 		const wanted = new Uint8Array(JOB_STATUSES.length).fill(query.status.length ? 0 : 1);
 		for (const s of query.status) wanted[STATUS.get(s)!] = 1;
@@ -316,18 +328,16 @@ export class BoardIndex {
 		} else {
 			for (let slot = 0; slot < n; slot++) if (alive[slot]) keep(slot);
 		}
-		const counts = byStatus(perStatus);
-
 		// The page: from the nearer end of the selection, skip to it and take it.
-		const { take, fromEnd, forward, order, skip: skipped } = this.span(query, total);
-		let skip = skipped;
-		const page: number[] = [];
-		if (total <= FEW) {
-			// A typed array sorts numbers natively, several times faster than a comparison function.
-			const places = Int32Array.from(few).sort();
-			if (!forward) places.reverse();
-			for (const place of places.subarray(skip, skip + take)) page.push(order[place]);
-		} else {
+		return this.pageFrom(query, wanted, perStatus, ({ take, forward, order, skip }) => {
+			const page: number[] = [];
+			if (total <= FEW) {
+				// A typed array sorts numbers natively, several times faster than a comparison function.
+				const places = Int32Array.from(few).sort();
+				if (!forward) places.reverse();
+				for (const place of places.subarray(skip, skip + take)) page.push(order[place]);
+				return page;
+			}
 			const lastBlock = Math.ceil(n / BLOCK) - 1;
 			for (let b = forward ? 0 : lastBlock; page.length < take && b >= 0 && b <= lastBlock; b += forward ? 1 : -1) {
 				if (blocks[b] !== generation) continue;
@@ -339,9 +349,22 @@ export class BoardIndex {
 					else page.push(order[i]);
 				}
 			}
-		}
-		if (fromEnd) page.reverse();
-		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+			return page;
+		});
+	}
+
+	/**
+	 * The page of the jobs counted in `perStatus` that are in a wanted status, with those counts:
+	 * `read` finds it along the order asked for from the end nearer the page (see `span`), and it
+	 * is turned round when read from the far end. Null when `read` gives up.
+	 */
+	private pageFrom(query: BoardQuery, wanted: Uint8Array, perStatus: Int32Array, read: (way: Span, total: number) => number[] | null): Selected | null {
+		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
+		const way = this.span(query, total);
+		const page = read(way, total);
+		if (!page) return null;
+		if (way.fromEnd) page.reverse();
+		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
 	}
 
 	/**
@@ -372,21 +395,13 @@ export class BoardIndex {
 	 * does, read along the order from its nearer end (with statuses chosen, as far as the page).
 	 */
 	private pageOfAll(query: BoardQuery, wanted: Uint8Array) {
-		const counts = byStatus(this.totals);
-		const total = this.totals.reduce((sum, n, i) => sum + (wanted[i] ? n : 0), 0);
-		const { take, fromEnd, forward, order, skip: skipped } = this.span(query, total);
-		let skip = skipped;
-		const page: number[] = [];
-		if (!query.status.length) {
+		const { status } = this;
+		return this.pageFrom(query, wanted, this.totals, ({ take, forward, order, skip }) => {
+			if (query.status.length) return this.walkBlocks(query.sort, forward, skip, take, wanted, null, (slot) => wanted[status[slot]] === 1);
 			const first = forward ? skip : order.length - skip - take;
-			page.push(...order.slice(first, first + take));
-			if (!forward) page.reverse();
-		} else {
-			const status = this.status;
-			page.push(...this.walkBlocks(query.sort, forward, skip, take, wanted, null, (slot) => wanted[status[slot]] === 1));
-		}
-		if (fromEnd) page.reverse();
-		return { counts, total, ids: page.map((slot) => this.ids[slot]) };
+			const page = order.slice(first, first + take);
+			return forward ? page : page.reverse();
+		});
 	}
 
 	/**
@@ -432,13 +447,11 @@ export class BoardIndex {
 	private pageOfTechnician(query: BoardQuery, wanted: Uint8Array, tech: string) {
 		const key = tech === 'none' ? null : tech;
 		const perStatus = this.techTotals.get(key) ?? new Int32Array(JOB_STATUSES.length);
-		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
-		const { take, fromEnd, forward, skip } = this.span(query, total);
 		const { status, techNo } = this;
 		const number = this.techNumbers.get(key);
-		const page = number === undefined ? [] : this.walkBlocks(query.sort, forward, skip, take, wanted, number, (slot) => wanted[status[slot]] === 1 && techNo[slot] === number);
-		if (fromEnd) page.reverse();
-		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
+		return this.pageFrom(query, wanted, perStatus, ({ take, forward, skip }) =>
+			number === undefined ? [] : this.walkBlocks(query.sort, forward, skip, take, wanted, number, (slot) => wanted[status[slot]] === 1 && techNo[slot] === number)
+		);
 	}
 
 	/**
@@ -456,20 +469,17 @@ export class BoardIndex {
 			const before = below(sorted, bound);
 			perStatus[s] = stale ? (s === pickedUp ? 0 : before) : sorted.length - before;
 		});
-		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
-		const { take, fromEnd, forward, order, skip } = this.span(query, total);
-		const expected = total ? ((skip + take + 1) * this.size) / total : this.size;
-		if (expected >= window) return null;
 		const { status } = this;
 		const times = stale ? this.changed : this.opened;
 		const kept = stale
 			? (slot: number) => wanted[status[slot]] === 1 && times[slot] < bound && status[slot] !== pickedUp
 			: (slot: number) => wanted[status[slot]] === 1 && times[slot] >= bound;
-		const limit = this.workLimit;
-		const page = this.walk(order, forward, skip, take, window > limit ? limit : Math.min(limit, 4 * expected + BLOCK), kept);
-		if (!page) return null;
-		if (fromEnd) page.reverse();
-		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
+		return this.pageFrom(query, wanted, perStatus, ({ take, forward, order, skip }, total) => {
+			const expected = total ? ((skip + take + 1) * this.size) / total : this.size;
+			if (expected >= window) return null;
+			const limit = this.workLimit;
+			return this.walk(order, forward, skip, take, window > limit ? limit : Math.min(limit, 4 * expected + BLOCK), kept);
+		});
 	}
 
 	/**
@@ -489,12 +499,10 @@ export class BoardIndex {
 			for (let i = 0; i < matched.length; i++) count += ones(matched[i] & bits[i]);
 			perStatus[s] = count;
 		});
-		const total = perStatus.reduce((sum, count, s) => sum + (wanted[s] ? count : 0), 0);
-		const { take, fromEnd, forward, order, skip } = this.span(query, total);
 		const { status } = this;
-		const page = this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1 && ((matched[slot >>> 5] >>> (slot & 31)) & 1) === 1)!;
-		if (fromEnd) page.reverse();
-		return { counts: byStatus(perStatus), total, ids: page.map((slot) => this.ids[slot]) };
+		return this.pageFrom(query, wanted, perStatus, ({ take, forward, order, skip }) =>
+			this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1 && ((matched[slot >>> 5] >>> (slot & 31)) & 1) === 1)
+		);
 	}
 
 	/** Along `order` from its start (`forward`) or end, skips `skip` jobs that pass `kept` and takes `take`; null past `limit` places. */
@@ -515,7 +523,7 @@ export class BoardIndex {
 	 * page (`forward` from the start, else from the end), skip `skip` selected jobs, take `take`,
 	 * and turn them round when read `fromEnd`.
 	 */
-	private span(query: BoardQuery, total: number) {
+	private span(query: BoardQuery, total: number): Span {
 		const offset = (query.page - 1) * query.per;
 		const take = Math.max(0, Math.min(query.per, total - offset));
 		const fromEnd = offset > total / 2;
