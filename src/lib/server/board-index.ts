@@ -122,7 +122,6 @@ export class BoardIndex {
 	private ids: string[] = [];
 	private xids: (string | null)[] = [];
 	private texts: string[] = [];
-	private techs: (string | null)[] = [];
 	/** Technicians (null: none) numbered in the order first met, and each slot's number. */
 	private techNumbers = new Map<string | null, number>();
 	private techNo = new Uint16Array(0);
@@ -140,9 +139,8 @@ export class BoardIndex {
 	private opened = new Float64Array(0);
 	private changed = new Float64Array(0);
 	private ranks: Record<SortKey, Int32Array> = Object.fromEntries(SORTED.map((k) => [k, new Int32Array(0)])) as never;
-	/** Live jobs per status, and per technician (null: none) and status. */
-	private totals = new Int32Array(JOB_STATUSES.length);
-	private techTotals = new Map<string | null, Int32Array>();
+	/** Live jobs per technician (by number) and status. */
+	private techTotals: Int32Array[] = [];
 	/** Per status, its live jobs' opening and change times in ascending order: how many fall before a time is one binary search. */
 	private timesOf: Record<'opened' | 'changed', number[][]> = { opened: JOB_STATUSES.map(() => []), changed: JOB_STATUSES.map(() => []) };
 	/** Word → the live jobs whose search text holds it; three letters → the words that hold them. */
@@ -242,7 +240,9 @@ export class BoardIndex {
 		const long = searchWords.filter((w) => w.length >= 3);
 		const short = searchWords.filter((w) => w.length < 3);
 		if (!searchWords.length && !query.age) return tech ? this.pageOfTechnician(query, wanted, tech) : this.pageOfAll(query, wanted);
-		const { alive, status, opened, changed, texts, techs } = this;
+		const { alive, status, opened, changed, texts, techNo } = this;
+		// A technician the index has not met holds no jobs: no slot's number is -1.
+		const techWanted = tech ? (this.techNumbers.get(tech === 'none' ? null : tech) ?? -1) : -1;
 		const n = this.ids.length;
 		const rank = this.ranks[query.sort];
 		// Where each selected job stands in the order asked for, and which blocks of BLOCK places hold
@@ -258,7 +258,7 @@ export class BoardIndex {
 		const keep = (slot: number) => {
 			if (byAge && opened[slot] < since) return;
 			if (stale && !(changed[slot] < staleBefore && status[slot] !== pickedUp)) return;
-			if (tech && (tech === 'none' ? techs[slot] !== null : techs[slot] !== tech)) return;
+			if (tech && techNo[slot] !== techWanted) return;
 			for (let w = 0; w < shortSets.length; w++) if (!((shortSets[w][slot >>> 5] >>> (slot & 31)) & 1)) return;
 			const state = status[slot];
 			perStatus[state]++;
@@ -396,7 +396,9 @@ export class BoardIndex {
 	 */
 	private pageOfAll(query: BoardQuery, wanted: Uint8Array) {
 		const { status } = this;
-		return this.pageFrom(query, wanted, this.totals, ({ take, forward, order, skip }) => {
+		const totals = new Int32Array(JOB_STATUSES.length);
+		for (const counts of this.techTotals) for (let s = 0; s < totals.length; s++) totals[s] += counts[s];
+		return this.pageFrom(query, wanted, totals, ({ take, forward, order, skip }) => {
 			if (query.status.length) return this.walkBlocks(query.sort, forward, skip, take, wanted, null, (slot) => wanted[status[slot]] === 1);
 			const first = forward ? skip : order.length - skip - take;
 			const page = order.slice(first, first + take);
@@ -446,9 +448,9 @@ export class BoardIndex {
 	 */
 	private pageOfTechnician(query: BoardQuery, wanted: Uint8Array, tech: string) {
 		const key = tech === 'none' ? null : tech;
-		const perStatus = this.techTotals.get(key) ?? new Int32Array(JOB_STATUSES.length);
-		const { status, techNo } = this;
 		const number = this.techNumbers.get(key);
+		const perStatus = number === undefined ? new Int32Array(JOB_STATUSES.length) : this.techTotals[number];
+		const { status, techNo } = this;
 		return this.pageFrom(query, wanted, perStatus, ({ take, forward, skip }) =>
 			number === undefined ? [] : this.walkBlocks(query.sort, forward, skip, take, wanted, number, (slot) => wanted[status[slot]] === 1 && techNo[slot] === number)
 		);
@@ -571,13 +573,14 @@ export class BoardIndex {
 		this.xids[slot] = job.xid;
 		this.texts[slot] = job.text;
 		this.status[slot] = STATUS.get(job.status)!;
-		this.totals[this.status[slot]]++;
-		this.techTotal(job.tech)[this.status[slot]]++;
-		this.statusBits[this.status[slot]][slot >>> 5] |= 1 << (slot & 31);
-		this.techs[slot] = job.tech;
 		let techNo = this.techNumbers.get(job.tech);
-		if (techNo === undefined) this.techNumbers.set(job.tech, (techNo = this.techNumbers.size));
+		if (techNo === undefined) {
+			this.techNumbers.set(job.tech, (techNo = this.techNumbers.size));
+			this.techTotals.push(new Int32Array(JOB_STATUSES.length));
+		}
 		this.techNo[slot] = techNo;
+		this.techTotals[techNo][this.status[slot]]++;
+		this.statusBits[this.status[slot]][slot >>> 5] |= 1 << (slot & 31);
 		this.opened[slot] = Number(job.opened);
 		this.changed[slot] = Number(job.changed);
 		const keys = this.keys;
@@ -612,12 +615,6 @@ export class BoardIndex {
 		return slot;
 	}
 
-	private techTotal(tech: string | null): Int32Array {
-		let counts = this.techTotals.get(tech);
-		if (!counts) this.techTotals.set(tech, (counts = new Int32Array(JOB_STATUSES.length)));
-		return counts;
-	}
-
 	/** The bits of a word as typed (see `wordBits`), read from every live job's text when it has none yet. */
 	private bitsOf(word: string): Uint32Array {
 		let bits = this.wordBits.get(word);
@@ -632,10 +629,9 @@ export class BoardIndex {
 		return bits;
 	}
 
-	/** Takes a job out from under its words and its status's count (its values stay until overwritten). */
+	/** Takes a job out from under its words and out of its counts (its values stay until overwritten). */
 	private unlink(slot: number) {
-		this.totals[this.status[slot]]--;
-		this.techTotal(this.techs[slot])[this.status[slot]]--;
+		this.techTotals[this.techNo[slot]][this.status[slot]]--;
 		this.statusBits[this.status[slot]][slot >>> 5] &= ~(1 << (slot & 31));
 		for (const token of words(this.texts[slot])) {
 			const jobs = this.postings.get(token)!;
