@@ -78,6 +78,11 @@ const byStatus = (n: Int32Array) => Object.fromEntries(JOB_STATUSES.map((s, i) =
 
 const words = (text: string) => [...new Set(text.split(/\s+/).filter(Boolean))];
 
+/** One bit per slot: whether a slot's bit is set, and setting or clearing it. */
+const hasBit = (bits: Uint32Array, slot: number) => ((bits[slot >>> 5] >>> (slot & 31)) & 1) === 1;
+const setBit = (bits: Uint32Array, slot: number) => void (bits[slot >>> 5] |= 1 << (slot & 31));
+const clearBit = (bits: Uint32Array, slot: number) => void (bits[slot >>> 5] &= ~(1 << (slot & 31)));
+
 /** The number of bits set in a 32-bit word. */
 function ones(word: number): number {
 	word -= (word >>> 1) & 0x55555555;
@@ -259,7 +264,7 @@ export class BoardIndex {
 			if (byAge && opened[slot] < since) return;
 			if (stale && !(changed[slot] < staleBefore && status[slot] !== pickedUp)) return;
 			if (tech && techNo[slot] !== techWanted) return;
-			for (let w = 0; w < shortSets.length; w++) if (!((shortSets[w][slot >>> 5] >>> (slot & 31)) & 1)) return;
+			for (let w = 0; w < shortSets.length; w++) if (!hasBit(shortSets[w], slot)) return;
 			const state = status[slot];
 			perStatus[state]++;
 			if (wanted[state]) {
@@ -306,7 +311,7 @@ export class BoardIndex {
 				const sets = tokens ? tokens.map((token) => this.frequent.get(token)) : [this.bitsOf(word)];
 				let test: (slot: number) => boolean;
 				if (sets.every(Boolean)) {
-					test = (slot) => sets.some((bits) => (bits![slot >>> 5] >>> (slot & 31)) & 1);
+					test = (slot) => sets.some((bits) => hasBit(bits!, slot));
 				} else if (size <= count * 4) {
 					for (const token of tokens!) for (const slot of this.postings.get(token)!) if (marks[slot] === stamp - 1) marks[slot] = stamp;
 					test = (slot) => marks[slot] === stamp;
@@ -503,7 +508,7 @@ export class BoardIndex {
 		});
 		const { status } = this;
 		return this.pageFrom(query, wanted, perStatus, ({ take, forward, order, skip }) =>
-			this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1 && ((matched[slot >>> 5] >>> (slot & 31)) & 1) === 1)
+			this.walk(order, forward, skip, take, order.length, (slot) => wanted[status[slot]] === 1 && hasBit(matched, slot))
 		);
 	}
 
@@ -580,7 +585,7 @@ export class BoardIndex {
 		}
 		this.techNo[slot] = techNo;
 		this.techTotals[techNo][this.status[slot]]++;
-		this.statusBits[this.status[slot]][slot >>> 5] |= 1 << (slot & 31);
+		setBit(this.statusBits[this.status[slot]], slot);
 		this.opened[slot] = Number(job.opened);
 		this.changed[slot] = Number(job.changed);
 		const keys = this.keys;
@@ -604,14 +609,14 @@ export class BoardIndex {
 			}
 			jobs.push(slot);
 			const bits = this.frequent.get(token);
-			if (bits) bits[slot >>> 5] |= 1 << (slot & 31);
+			if (bits) setBit(bits, slot);
 			else if (jobs.length >= FREQUENT) {
 				const made = new Uint32Array(this.alive.length >>> 5);
-				for (const held of jobs) made[held >>> 5] |= 1 << (held & 31);
+				for (const held of jobs) setBit(made, held);
 				this.frequent.set(token, made);
 			}
 		}
-		for (const [word, bits] of this.wordBits) if (job.text.includes(word)) bits[slot >>> 5] |= 1 << (slot & 31);
+		for (const [word, bits] of this.wordBits) if (job.text.includes(word)) setBit(bits, slot);
 		return slot;
 	}
 
@@ -622,7 +627,7 @@ export class BoardIndex {
 			this.wordBits.delete(word); // to the back: the map keeps them in order of use
 		} else {
 			bits = new Uint32Array(this.alive.length >>> 5);
-			for (let slot = 0; slot < this.ids.length; slot++) if (this.alive[slot] && this.texts[slot].includes(word)) bits[slot >>> 5] |= 1 << (slot & 31);
+			for (let slot = 0; slot < this.ids.length; slot++) if (this.alive[slot] && this.texts[slot].includes(word)) setBit(bits, slot);
 			if (this.wordBits.size >= WORDS_KEPT) this.wordBits.delete(this.wordBits.keys().next().value!);
 		}
 		this.wordBits.set(word, bits);
@@ -632,14 +637,14 @@ export class BoardIndex {
 	/** Takes a job out from under its words and out of its counts (its values stay until overwritten). */
 	private unlink(slot: number) {
 		this.techTotals[this.techNo[slot]][this.status[slot]]--;
-		this.statusBits[this.status[slot]][slot >>> 5] &= ~(1 << (slot & 31));
+		clearBit(this.statusBits[this.status[slot]], slot);
 		for (const token of words(this.texts[slot])) {
 			const jobs = this.postings.get(token)!;
 			jobs.splice(jobs.indexOf(slot), 1);
 			const bits = this.frequent.get(token);
-			if (bits) bits[slot >>> 5] &= ~(1 << (slot & 31));
+			if (bits) clearBit(bits, slot);
 		}
-		for (const bits of this.wordBits.values()) bits[slot >>> 5] &= ~(1 << (slot & 31));
+		for (const bits of this.wordBits.values()) clearBit(bits, slot);
 	}
 
 	private grow(capacity: number) {
